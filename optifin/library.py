@@ -9,6 +9,7 @@ up for a million designs with one ``np.take``.
 from __future__ import annotations
 
 import difflib
+import functools
 import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
@@ -185,9 +186,8 @@ def _code(key: str, keys: tuple[str, ...], what: str) -> int:
 
 
 # -- reading ---------------------------------------------------------------------------------
-def _read_bundled(name: str) -> dict:
-    text = resources.files("optifin.data").joinpath(name).read_text(encoding="utf-8")
-    return yaml.safe_load(text)
+def _read_text(name: str) -> str:
+    return resources.files("optifin.data").joinpath(name).read_text(encoding="utf-8")
 
 
 def _value(entry: Any, kind: str, path: str, sources: Mapping, currency: str) -> Value:
@@ -227,8 +227,12 @@ def parse_library(materials_doc: Mapping, processes_doc: Mapping) -> Library:
             raise DataError(f"sources.{key}: needs a kind in {SOURCE_KINDS} and a citation")
 
     materials: dict[str, Material] = {}
+    known_material = {*MATERIAL_FIELDS, "name", "family", "emissivity"}
+    known_process = {*PROCESS_FIELDS, "name", "materials", "monolithic", "stock", "cost"}
     for key, m in (materials_doc.get("materials") or {}).items():
         path = f"materials.{key}"
+        for name in m:
+            _known(name, known_material, path)
         values = {
             f: _value(m.get(f), kind, f"{path}.{f}", sources, currency)
             for f, kind in MATERIAL_FIELDS.items()
@@ -253,6 +257,8 @@ def parse_library(materials_doc: Mapping, processes_doc: Mapping) -> Library:
     processes: dict[str, Process] = {}
     for key, p in (processes_doc.get("processes") or {}).items():
         path = f"processes.{key}"
+        for name in p:
+            _known(name, known_process, path)
         limits = {}
         for f, kind in PROCESS_FIELDS.items():
             if f in p:
@@ -305,9 +311,20 @@ def _replace(obj, **changes):
     return dataclasses.replace(obj, **changes)
 
 
+@functools.cache
+def _bundled_text() -> tuple[str, str]:
+    return _read_text("materials.yaml"), _read_text("processes.yaml")
+
+
 def bundled_documents() -> tuple[dict, dict]:
-    """The parsed bundled materials and processes YAML documents."""
-    return _read_bundled("materials.yaml"), _read_bundled("processes.yaml")
+    """The parsed bundled materials and processes YAML documents (fresh copies)."""
+    mats, procs = _bundled_text()
+    return yaml.safe_load(mats), yaml.safe_load(procs)
+
+
+@functools.cache
+def _bundled_library() -> Library:
+    return parse_library(*bundled_documents())
 
 
 def load_library(
@@ -320,6 +337,8 @@ def load_library(
     ``{"cu_c11000": {"price": "13 USD/kg"}}``; overridden values get the source ``user``.
     A key not in the library defines a new entry, which must then give every field.
     """
+    if not material_overrides and not process_overrides:
+        return _bundled_library()  # immutable, so one instance serves every caller
     mats, procs = bundled_documents()
     mats = _apply_overrides(mats, "materials", material_overrides)
     procs = _apply_overrides(procs, "processes", process_overrides)

@@ -9,6 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import pandas as pd
 
 from optifin.library import Library
 from optifin.model.design import Designs
@@ -153,12 +154,14 @@ def _set(reasons: np.ndarray, name: str, where: np.ndarray) -> None:
     np.bitwise_or(reasons, BIT[name], out=reasons, where=where)
 
 
-def describe(reasons: np.ndarray) -> np.ndarray:
-    """Readable reasons for a bitmask array (``""`` where feasible), as an object array."""
+def describe(reasons: np.ndarray) -> pd.Categorical:
+    """Readable reasons for a bitmask array (``""`` where feasible), as a categorical."""
     reasons = np.asarray(reasons, dtype=np.int64)
-    uniques, inverse = np.unique(reasons, return_inverse=True)
+    used = np.flatnonzero(np.bincount(reasons.ravel(), minlength=1))
     texts = []
-    for code in uniques:
+    for code in used:
         parts = [text for i, (_, text) in enumerate(REASONS) if code & (1 << i)]
         texts.append("; ".join(parts))
-    return np.array(texts, dtype=object)[inverse.reshape(reasons.shape)]
+    lookup = np.zeros(used[-1] + 1 if used.size else 1, dtype=np.int32)
+    lookup[used] = np.arange(used.size, dtype=np.int32)
+    return pd.Categorical.from_codes(lookup[reasons], categories=pd.Index(texts, dtype=object))

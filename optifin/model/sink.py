@@ -119,11 +119,10 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
     ua = h * g.exposed_base_area + fin_g
     # Teertstra's h is inlet-referenced and holds the heat-capacity limit for the fin walls;
     # the exposed base adds area, so cap at m-dot c_p. Bulk-referenced h: epsilon-NTU.
-    g_conv = np.where(
-        inlet_ref,
-        np.minimum(ua, capacity),
-        forced_convection.bulk_referenced_conductance(ua, capacity),
-    )
+    g_conv = np.minimum(ua, capacity)
+    if not inlet_ref.all():
+        bulk = forced_convection.bulk_referenced_conductance(ua, capacity)
+        g_conv = np.where(inlet_ref, g_conv, bulk)
 
     aspect = g.gap / g.height
     fanning = pressure_drop.fanning_channel(re_dh, g.length, d_h, aspect)

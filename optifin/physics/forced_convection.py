@@ -148,7 +148,7 @@ def nusselt_teertstra_1999(re_b_star, pr):
     large = np.maximum(developed, developing)
     positive = large > 0
     ratio = small / np.where(positive, large, 1.0)
-    return np.where(positive, small / np.cbrt(1.0 + ratio**3), 0.0)
+    return np.where(positive, small / np.cbrt(1.0 + ratio * ratio * ratio), 0.0)
 
 
 @correlation(

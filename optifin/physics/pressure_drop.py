@@ -204,8 +204,11 @@ def fanning_channel(re_dh, length, d_h, aspect, re_transition=2300.0):
     laminar = fanning_apparent_muzychka_yovanovich(
         re_dh, length / (d_h * re_dh), fre_shah_london_1978(aspect)
     )
+    above = re_dh > re_transition
+    if not np.any(above):
+        return laminar
     turbulent = fanning_petukhov_1970(np.maximum(re_dh, re_transition))
-    return np.where(re_dh > re_transition, np.maximum(laminar, turbulent), laminar)
+    return np.where(above, np.maximum(laminar, turbulent), laminar)
 
 
 @correlation(

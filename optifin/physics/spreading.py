@@ -188,7 +188,8 @@ def spreading_song_lee_au_1994(source_area, plate_area, thickness, k, h_eff):
     lam_over_bi = lam * k / (h_eff * b)  # 0 for an isothermal far face (h_eff = inf)
     th = np.tanh(lam * tau)
     phi = (th + lam_over_bi) / (1.0 + lam_over_bi * th)
-    r_avg = 0.5 * (1.0 - eps) ** 1.5 * phi / (np.sqrt(np.pi) * k * a)
+    rest = 1.0 - eps
+    r_avg = 0.5 * rest * np.sqrt(rest) * phi / (np.sqrt(np.pi) * k * a)  # (1 - ε)^(3/2)
     r_max = (1.0 - eps) * phi / (np.pi * k * a)
     return r_avg, r_max
 
