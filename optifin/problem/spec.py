@@ -1,0 +1,146 @@
+"""The resolved problem: frozen dataclasses that the loader builds and the search reads.
+
+Everything here is SI and already validated; nothing refers back to the YAML text except the
+``source`` path and the YAML paths kept for messages.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from optifin.library import Library
+from optifin.model.condition import Condition
+
+#: Design variables a problem can search or fix, with their kinds.
+VARIABLE_KINDS: dict[str, str] = {
+    "fin_count": "integer",
+    "fin_thickness": "length",
+    "fin_height": "length",
+    "base_thickness": "length",
+    "width": "length",
+    "length": "length",
+    "material": "choice",
+    "process": "choice",
+    "finish": "choice",
+}
+
+#: Objectives: model array key and the default sense.
+OBJECTIVES: dict[str, tuple[str, str]] = {
+    "heat_rate": ("heat_rate", "maximise"),
+    "thermal_resistance": ("thermal_resistance", "minimise"),
+    "base_temperature": ("base_temperature", "minimise"),
+    "mass": ("mass", "minimise"),
+    "pressure_drop": ("pressure_drop", "minimise"),
+    "fan_power": ("fan_power", "minimise"),
+    "material_cost": ("material_cost", "minimise"),
+    "total_cost": ("total_cost", "minimise"),
+    "volume": ("volume", "minimise"),
+}
+
+#: Upper-limit constraints: problem key -> (model array key, quantity kind).
+LIMITS: dict[str, tuple[str, str]] = {
+    "max_base_temperature": ("base_temperature", "temperature"),
+    "max_source_temperature": ("source_temperature", "temperature"),
+    "max_pressure_drop": ("pressure_drop", "pressure"),
+    "max_fan_power": ("fan_power", "power"),
+    "max_mass": ("mass", "mass"),
+    "max_cost": ("total_cost", "dimensionless"),
+    "max_material_cost": ("material_cost", "dimensionless"),
+}
+
+
+@dataclass(frozen=True)
+class Variable:
+    """One design variable: fixed (``value``), a stepped or continuous range, or choices.
+
+    For ``integer`` and ``length`` kinds: ``low``/``high`` in SI (``step`` optional, SI; an
+    integer always steps by 1). For ``choice``: ``choices`` are library keys. A fixed
+    variable has ``low == high`` (numbers) or one choice.
+    """
+
+    name: str
+    kind: str
+    low: float | None = None
+    high: float | None = None
+    step: float | None = None
+    choices: tuple[str, ...] = ()
+
+    @property
+    def fixed(self) -> bool:
+        if self.kind == "choice":
+            return len(self.choices) == 1
+        return self.low == self.high
+
+    @property
+    def discrete(self) -> bool:
+        """True when the variable takes finitely many values (for the exact grid)."""
+        return self.kind in ("integer", "choice") or self.fixed or self.step is not None
+
+    def grid(self) -> np.ndarray:
+        """All values of a discrete variable (codes for choices are positions in choices)."""
+        if self.kind == "choice":
+            return np.arange(len(self.choices))
+        if self.fixed:
+            return np.array([self.low])
+        step = 1.0 if self.kind == "integer" else self.step
+        if step is None:
+            raise ValueError(f"{self.name} is continuous")
+        count = int(np.floor((self.high - self.low) / step + 1e-9)) + 1
+        return self.low + step * np.arange(count)
+
+
+@dataclass(frozen=True)
+class Objective:
+    name: str  #: a key of OBJECTIVES
+    sense: str  #: "minimise" or "maximise"
+
+    @property
+    def key(self) -> str:
+        return OBJECTIVES[self.name][0]
+
+
+@dataclass(frozen=True)
+class Envelope:
+    """Largest sink allowed [m]; None where the problem sets no bound."""
+
+    max_width: float | None = None
+    max_length: float | None = None
+    max_height: float | None = None  #: base plus fins
+
+
+@dataclass(frozen=True)
+class SearchSettings:
+    algorithm: str = "auto"  #: "auto", "nsga2", "nsga3" or "exact"
+    population: int = 100
+    evaluations: int = 20000
+    seed: int = 1
+    exact_limit: int = 2_000_000  #: "auto" enumerates grids up to this many designs
+
+
+@dataclass(frozen=True)
+class Problem:
+    """A validated optimisation problem."""
+
+    name: str
+    source: str
+    description: str
+    condition: Condition
+    variables: tuple[Variable, ...]
+    objectives: tuple[Objective, ...]
+    limits: dict[str, float]  #: keys of LIMITS -> SI limit
+    envelope: Envelope
+    search: SearchSettings
+    library: Library
+    resolved: dict = field(default_factory=dict, repr=False)  #: canonical SI form, for hashing
+
+    def variable(self, name: str) -> Variable:
+        for v in self.variables:
+            if v.name == name:
+                return v
+        raise KeyError(name)
+
+    @property
+    def searched(self) -> tuple[Variable, ...]:
+        return tuple(v for v in self.variables if not v.fixed)
