@@ -1,3 +1,18 @@
-"""optifin: multi-objective design optimisation of air-cooled plate-fin heat sinks."""
+"""optifin: multi-objective design optimisation of air-cooled plate-fin heat sinks.
+
+The public API (``load_problem``, ``evaluate_designs``, ``optimise``, ``write_run``) is
+imported on first use, so that ``import optifin`` stays cheap.
+"""
 
 __version__ = "0.1.0"
+
+_API = ("design_from_values", "evaluate_designs", "load_problem", "optimise", "write_run")
+__all__ = ["__version__", *_API]
+
+
+def __getattr__(name):
+    if name in _API:
+        from optifin import api
+
+        return getattr(api, name)
+    raise AttributeError(f"module 'optifin' has no attribute {name!r}")
