@@ -28,12 +28,7 @@ class Scores:
 def constraint_names(problem: Problem) -> list[str]:
     """Names of the constraints, in the column order of G."""
     names = [name for name in LIMITS if name in problem.limits]
-    env = problem.envelope
-    names += [
-        f"envelope_{k}"
-        for k in ("max_width", "max_length", "max_height")
-        if getattr(env, k) is not None
-    ]
+    names += [f"envelope_{name}" for name, _, _ in _envelope_terms(problem)]
     names += [
         "min_fin_thickness",
         "min_gap",
@@ -68,14 +63,8 @@ def score(problem: Problem, designs: Designs) -> Scores:
         limit = problem.limits[name]
         scale = (limit - t_a) if kind == "temperature" else abs(limit)
         g.append((arrays[key] - limit) / scale)
-    env = problem.envelope
-    for bound, value in (
-        (env.max_width, designs.width),
-        (env.max_length, designs.length),
-        (env.max_height, designs.base_thickness + designs.fin_height),
-    ):
-        if bound is not None:
-            g.append((value - bound) / bound)
+    for _, bound, size in _envelope_terms(problem):
+        g.append((size(designs) - bound) / bound)
     margins = manufacturing_margins(designs, problem.library)
     for name in (
         "min_fin_thickness",
@@ -93,3 +82,31 @@ def score(problem: Problem, designs: Designs) -> Scores:
     G = np.where(np.isfinite(G), G, 1e3)
     feasible = np.all(G <= 0, axis=1) & (reasons == 0)
     return Scores(F=F, G=G, feasible=feasible, arrays=arrays)
+
+
+def _envelope_terms(problem: Problem):
+    """Envelope bounds that some design of the problem could exceed: (name, bound, size).
+
+    A bound that no design within the variables' ranges can break (a width fixed at the
+    envelope's maximum, say) is not a constraint and is left out.
+    """
+    env = problem.envelope
+
+    def top(name):
+        return problem.variable(name).high
+
+    terms = (
+        ("max_width", env.max_width, top("width"), lambda d: d.width),
+        ("max_length", env.max_length, top("length"), lambda d: d.length),
+        (
+            "max_height",
+            env.max_height,
+            top("base_thickness") + top("fin_height"),
+            lambda d: d.base_thickness + d.fin_height,
+        ),
+    )
+    return [
+        (name, bound, size)
+        for name, bound, largest, size in terms
+        if bound is not None and largest > bound * (1 + 1e-12)
+    ]
