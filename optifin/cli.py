@@ -127,7 +127,12 @@ def _check(args) -> int:
     encoding = Encoding(problem)
     grid = encoding.grid_size
     searched = ", ".join(v.name for v in problem.searched) or "nothing"
-    size = f"{grid:,} designs on the grid" if grid is not None else "continuous variables"
+    if grid is None:
+        size = "continuous variables (genetic search)"
+    elif grid <= problem.search.exact_limit:
+        size = f"{grid:,} designs on the grid, small enough for --algorithm exact"
+    else:
+        size = f"{grid:,} designs on the grid (genetic search)"
     print(
         f"{args.problem}: ok ({problem.name}: searches {searched}; {size}; "
         f"{len(problem.objectives)} objectives)"

@@ -105,47 +105,81 @@ def derive(designs: Designs, library: Library, source_sizes=None) -> Geometry:
     )
 
 
+#: Process limits checked on every design: (name, library array, True for a minimum).
+LIMIT_CHECKS: tuple[tuple[str, bool], ...] = (
+    ("min_fin_thickness", True),
+    ("min_gap", True),
+    ("max_aspect_ratio", False),
+    ("min_base_thickness", True),
+    ("max_fin_height", False),
+    ("max_width", False),
+)
+
+
+def _limit_table(library: Library) -> np.ndarray:
+    """Reciprocal limits, (process, check), and the sign of each check, cached per library."""
+    key = "_limit_table"
+    cached = library._arrays.get(key)
+    if cached is None:
+        cached = np.column_stack([1.0 / library.array(name) for name, _ in LIMIT_CHECKS])
+        cached.setflags(write=False)
+        library._arrays[key] = cached
+    return cached
+
+
+def _margin_matrix(designs: Designs, library: Library, gap) -> np.ndarray:
+    """(N, 6) normalised margins in the order of :data:`LIMIT_CHECKS`."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        aspect = np.where(gap > 0, designs.fin_height / gap, np.inf)
+    values = np.column_stack(
+        (
+            designs.fin_thickness,
+            gap,
+            aspect,
+            designs.base_thickness,
+            designs.fin_height,
+            designs.width,
+        )
+    )
+    with np.errstate(invalid="ignore"):
+        ratio = values * _limit_table(library)[designs.process]  # value / limit
+    # minimums: value/limit - 1; maximums: 1 - value/limit (an absent maximum is +inf: 1)
+    sign = np.array([1.0 if is_min else -1.0 for _, is_min in LIMIT_CHECKS])
+    return (ratio - 1.0) * sign
+
+
 def manufacturing_margins(designs: Designs, library: Library, gap=None) -> dict[str, np.ndarray]:
     """Normalised margins of each process limit, negative where the limit is broken.
 
-    ``(value - minimum)/minimum`` for minimums and ``(maximum - value)/maximum`` for
-    maximums, so that a search can grade how far a design is from being makeable.
+    ``value/minimum - 1`` for minimums and ``1 - value/maximum`` for maximums, so that a
+    search can grade how far a design is from being makeable.
     """
-    p = designs.process
     if gap is None:
         n = designs.fin_count.astype(float)
         with np.errstate(divide="ignore", invalid="ignore"):
             gap = (designs.width - n * designs.fin_thickness) / (n - 1)
-    lib = library.array
+    margins = _margin_matrix(designs, library, gap)
+    return {name: margins[:, i] for i, (name, _) in enumerate(LIMIT_CHECKS)}
 
-    def minimum(value, name):
-        return value / lib(name)[p] - 1.0
 
-    def maximum(value, name):
-        return 1.0 - value / lib(name)[p]  # an absent maximum is +inf: margin 1
-
-    with np.errstate(divide="ignore", invalid="ignore"):
-        aspect = np.where(gap > 0, designs.fin_height / gap, np.inf)
-    return {
-        "min_fin_thickness": minimum(designs.fin_thickness, "min_fin_thickness"),
-        "min_gap": minimum(gap, "min_gap"),
-        "max_aspect_ratio": maximum(aspect, "max_aspect_ratio"),
-        "min_base_thickness": minimum(designs.base_thickness, "min_base_thickness"),
-        "max_fin_height": maximum(designs.fin_height, "max_fin_height"),
-        "max_width": maximum(designs.width, "max_width"),
-    }
+_LIMIT_BITS = np.array(
+    [1 << [n for n, _ in REASONS].index(name) for name, _ in LIMIT_CHECKS], dtype=np.int64
+)
 
 
 def manufacturing_reasons(designs: Designs, library: Library, gap=None) -> np.ndarray:
     """Bitmask of the manufacturing reasons a design cannot be made."""
-    reasons = np.zeros(len(designs), dtype=np.int64)
+    if gap is None:
+        n = designs.fin_count.astype(float)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            gap = (designs.width - n * designs.fin_thickness) / (n - 1)
+    with np.errstate(invalid="ignore"):
+        broken = _margin_matrix(designs, library, gap) < -1e-9
+    reasons = np.bitwise_or.reduce(np.where(broken, _LIMIT_BITS, 0), axis=1)
     allowed = library.array("allowed")[designs.process, designs.material]
     _set(reasons, "material_process", ~allowed)
     emissivity = library.array("emissivity")[designs.material, designs.finish]
     _set(reasons, "finish", np.isnan(emissivity))
-    with np.errstate(invalid="ignore"):
-        for name, margin in manufacturing_margins(designs, library, gap).items():
-            _set(reasons, name, margin < -1e-9)
     return reasons
 
 

@@ -105,13 +105,15 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
     else:
         inlet_ref = re_dh < RE_TRANSITION
     h_teertstra = forced_convection.nusselt_teertstra_1999(re_star, pr) * k_air / g.gap
+    f_turb = None
     if method == "developed_laminar":
         h_bulk = forced_convection.NUSSELT_PARALLEL_PLATES_T * k_air / (2 * g.gap)
     elif inlet_ref.all():
         h_bulk = h_teertstra  # no turbulent channel in this block
     else:
         re_turb = np.maximum(re_dh, RE_TRANSITION)
-        h_bulk = forced_convection.nusselt_gnielinski_1976(re_turb, pr) * k_air / d_h
+        f_turb = forced_convection.fanning_petukhov_1970(re_turb)
+        h_bulk = forced_convection.nusselt_gnielinski_1976(re_turb, pr, f_turb) * k_air / d_h
     used = ["nusselt_parallel_plates_shah_london_1978"] if method == "developed_laminar" else []
     h = np.where(inlet_ref, h_teertstra, h_bulk)
     tip = cond.tip
@@ -125,7 +127,9 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
         g_conv = np.where(inlet_ref, g_conv, bulk)
 
     aspect = g.gap / g.height
-    fanning = pressure_drop.fanning_channel(re_dh, g.length, d_h, aspect)
+    fanning = pressure_drop.fanning_channel(
+        re_dh, g.length, d_h, aspect, RE_TRANSITION, turbulent=f_turb
+    )
     k_c, k_e = pressure_drop.loss_coefficients(g.sigma, cond.loss_coefficients)
     dp = pressure_drop.channel_pressure_drop(k_c, k_e, fanning, g.length, d_h, rho, v_ch)
 
@@ -237,22 +241,24 @@ def evaluate_arrays(designs: Designs, condition: Condition, library: Library) ->
     n = len(designs)
     if n <= BLOCK:
         return _evaluate_block(designs, condition, library)
-    parts = [
-        _evaluate_block(designs.take(slice(i, i + BLOCK)), condition, library)
-        for i in range(0, n, BLOCK)
-    ]
-    joined = {}
-    for key, value in parts[0].items():
-        if isinstance(value, np.ndarray):
-            joined[key] = np.concatenate([p[key] for p in parts])
-    names = list(dict.fromkeys(name for p in parts for name in p["flags"]))
-    joined["flags"] = {
-        name: np.concatenate(
-            [p["flags"].get(name, np.zeros(len(p["reasons"]), bool)) for p in parts]
-        )
-        for name in names
-    }
-    joined["used"] = list(dict.fromkeys(u for p in parts for u in p["used"]))
+    joined: dict = {}
+    flags: dict[str, np.ndarray] = {}
+    used: list[str] = []
+    for start in range(0, n, BLOCK):
+        part = _evaluate_block(designs.take(slice(start, start + BLOCK)), condition, library)
+        rows = slice(start, start + len(part["reasons"]))
+        for key, value in part.items():
+            if isinstance(value, np.ndarray):
+                if key not in joined:
+                    joined[key] = np.empty(n, dtype=value.dtype)
+                joined[key][rows] = value
+        for name, flag in part["flags"].items():
+            if name not in flags:  # a correlation first needed in a later block
+                flags[name] = np.zeros(n, dtype=bool)
+            flags[name][rows] = flag
+        used.extend(u for u in part["used"] if u not in used)
+    joined["flags"] = flags
+    joined["used"] = used
     return joined
 
 

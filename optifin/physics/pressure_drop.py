@@ -167,7 +167,7 @@ def fanning_apparent_muzychka_yovanovich(re_dh, l_star, fre):
     return np.sqrt(3.44**2 / l_star + fre**2) / re_dh
 
 
-def fanning_channel(re_dh, length, d_h, aspect, re_transition=2300.0):
+def fanning_channel(re_dh, length, d_h, aspect, re_transition=2300.0, turbulent=None):
     """Fanning factor of a fin channel over the whole flow range.
 
     Laminar (``re_dh <= re_transition``): the apparent factor of
@@ -207,7 +207,8 @@ def fanning_channel(re_dh, length, d_h, aspect, re_transition=2300.0):
     above = re_dh > re_transition
     if not np.any(above):
         return laminar
-    turbulent = fanning_petukhov_1970(np.maximum(re_dh, re_transition))
+    if turbulent is None:  # callers that already have it pass Petukhov's f at max(Re, Re_t)
+        turbulent = fanning_petukhov_1970(np.maximum(re_dh, re_transition))
     return np.where(above, np.maximum(laminar, turbulent), laminar)
 
 

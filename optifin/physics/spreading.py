@@ -22,6 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from optifin.errors import ModelError
+from optifin.numerics import tanh
 from optifin.physics.registry import correlation
 
 __all__ = [
@@ -186,7 +187,7 @@ def spreading_song_lee_au_1994(source_area, plate_area, thickness, k, h_eff):
     tau = thickness / b
     lam = np.pi + 1.0 / (np.sqrt(np.pi) * eps)
     lam_over_bi = lam * k / (h_eff * b)  # 0 for an isothermal far face (h_eff = inf)
-    th = np.tanh(lam * tau)
+    th = tanh(lam * tau)
     phi = (th + lam_over_bi) / (1.0 + lam_over_bi * th)
     rest = 1.0 - eps
     r_avg = 0.5 * rest * np.sqrt(rest) * phi / (np.sqrt(np.pi) * k * a)  # (1 - ε)^(3/2)
