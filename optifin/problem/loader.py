@@ -162,9 +162,8 @@ def _duplicate_keys(text: str) -> list[str]:
 
 
 # -- the library -----------------------------------------------------------------------------
-@functools.cache
 def bundled_library() -> Library:
-    """The bundled library without overrides (read once)."""
+    """The bundled library without overrides (optifin.library reads it once)."""
     return load_library()
 
 

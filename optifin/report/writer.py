@@ -8,7 +8,6 @@ in place, then removed.
 
 from __future__ import annotations
 
-import hashlib
 import json
 import os
 import platform
@@ -22,12 +21,7 @@ import numpy as np
 import pandas as pd
 
 from optifin.physics import registry
-
-
-def problem_hash(problem) -> str:
-    """SHA-256 of the resolved (canonical SI) problem."""
-    text = json.dumps(problem.resolved, sort_keys=True, default=str, separators=(",", ":"))
-    return hashlib.sha256(text.encode()).hexdigest()
+from optifin.problem import problem_hash
 
 
 def versions() -> dict[str, str]:
