@@ -23,20 +23,20 @@ def mass_and_cost(
     g = geometry
     p, m = designs.process, designs.material
     lib = library.array
-    density = lib("density")[m]
+    density = np.take(lib("density"), m)
     part_volume = g.base_area * g.base + g.n * g.t * g.height * g.length
     envelope = g.base_area * (g.base + g.height)
     mass = density * part_volume
-    block = lib("stock_block")[p]
-    stock_mass = np.where(block, density * envelope, mass / lib("material_yield")[p])
-    material_cost = lib("price")[m] * stock_mass
+    block = np.take(lib("stock_block"), p)
+    stock_mass = np.where(block, density * envelope, mass / np.take(lib("material_yield"), p))
+    material_cost = np.take(lib("price"), m) * stock_mass
     removed = np.where(block, envelope - part_volume, 0.0)
     process_cost = (
-        lib("cost_setup")[p] / quantity
-        + lib("cost_per_part")[p]
-        + lib("cost_per_kg")[p] * mass
-        + lib("cost_per_fin")[p] * g.n
-        + lib("cost_per_volume_removed")[p] * removed
+        np.take(lib("cost_setup"), p) / quantity
+        + np.take(lib("cost_per_part"), p)
+        + np.take(lib("cost_per_kg"), p) * mass
+        + np.take(lib("cost_per_fin"), p) * g.n
+        + np.take(lib("cost_per_volume_removed"), p) * removed
     )
     return {
         "mass": mass,

@@ -14,6 +14,7 @@ several); the "source temperature" adds the interface material (the device case)
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -22,7 +23,7 @@ from optifin.library import Library
 from optifin.model.condition import Condition
 from optifin.model.cost import mass_and_cost
 from optifin.model.design import Designs
-from optifin.model.geometry import BIT, NONEXISTENT, Geometry, derive
+from optifin.model.geometry import BIT, NONEXISTENT, Geometry, derive, pair_lookup
 from optifin.numerics import bracketed_root
 from optifin.physics import (
     fins,
@@ -54,13 +55,13 @@ class _Solid:
 
 def _solid(designs: Designs, g: Geometry, library: Library) -> _Solid:
     lib = library.array
-    k = lib("conductivity")[designs.material]
-    emissivity = lib("emissivity")[designs.material, designs.finish]
-    emissivity = np.where(np.isnan(emissivity), 0.0, emissivity)
-    r_area = lib("joint_resistance")[designs.process]
-    groove = lib("groove_depth")[designs.process]
+    k = np.take(lib("conductivity"), designs.material)
+    emissivity = pair_lookup(lib("emissivity"), designs.material, designs.finish)
+    emissivity = np.fmax(emissivity, 0.0)  # a finish not offered (NaN): no radiation
+    r_area = np.take(lib("joint_resistance"), designs.process)  # 0 for monolithic sinks
+    groove = np.take(lib("groove_depth"), designs.process)
     # the bond line wets both groove walls and the groove bottom of each fin
-    joint = np.where(r_area > 0, r_area / (g.length * (g.t + 2 * groove)), 0.0)
+    joint = r_area / (g.length * (g.t + 2 * groove))
     return _Solid(k=k, emissivity=emissivity, joint=joint)
 
 
@@ -80,10 +81,24 @@ def _finned_conductance(h, g: Geometry, solid: _Solid, tip: str, count) -> tuple
 
 
 # -- forced convection through a shrouded array ----------------------------------------------
+@functools.lru_cache(maxsize=64)
+def _inlet_air(temperature: float, pressure: float) -> tuple[float, ...]:
+    """rho, c_p, k, nu, Pr of the inlet air (one condition: scalars, computed once)."""
+    air = air_properties(temperature, pressure)
+    return tuple(
+        float(v)
+        for v in (
+            air.density,
+            air.specific_heat,
+            air.conductivity,
+            air.kinematic_viscosity,
+            air.prandtl,
+        )
+    )
+
+
 def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
-    air = air_properties(cond.ambient_temperature, cond.pressure)
-    rho, cp, k_air = float(air.density), float(air.specific_heat), float(air.conductivity)
-    nu, pr = float(air.kinematic_viscosity), float(air.prandtl)
+    rho, cp, k_air, nu, pr = _inlet_air(cond.ambient_temperature, cond.pressure)
     frontal = g.width * g.height
     flow = (
         cond.approach_velocity * frontal
@@ -104,31 +119,34 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
         inlet_ref = np.zeros_like(re_dh, dtype=bool)
     else:
         inlet_ref = re_dh < RE_TRANSITION
-    h_teertstra = forced_convection.nusselt_teertstra_1999(re_star, pr) * k_air / g.gap
-    f_turb = None
+    # turbulent channels are few: evaluate their correlations on that subset only
+    turbulent = np.flatnonzero(re_dh >= RE_TRANSITION)
+    f_turb = np.zeros_like(re_dh)  # Petukhov's f where turbulent (0: the laminar f rules)
+    f_turb[turbulent] = forced_convection.fanning_petukhov_1970(re_dh[turbulent])
+    bulk = np.flatnonzero(~inlet_ref)
     if method == "developed_laminar":
-        h_bulk = forced_convection.NUSSELT_PARALLEL_PLATES_T * k_air / (2 * g.gap)
-    elif inlet_ref.all():
-        h_bulk = h_teertstra  # no turbulent channel in this block
+        h = forced_convection.NUSSELT_PARALLEL_PLATES_T * k_air / (2 * g.gap)
     else:
-        re_turb = np.maximum(re_dh, RE_TRANSITION)
-        f_turb = forced_convection.fanning_petukhov_1970(re_turb)
-        h_bulk = forced_convection.nusselt_gnielinski_1976(re_turb, pr, f_turb) * k_air / d_h
+        h = forced_convection.nusselt_teertstra_1999(re_star, pr) * k_air / g.gap
+        if bulk.size:
+            h[bulk] = (
+                forced_convection.nusselt_gnielinski_1976(re_dh[bulk], pr, f_turb[bulk])
+                * k_air
+                / d_h[bulk]
+            )
     used = ["nusselt_parallel_plates_shah_london_1978"] if method == "developed_laminar" else []
-    h = np.where(inlet_ref, h_teertstra, h_bulk)
     tip = cond.tip
     fin_g, eta = _finned_conductance(h, g, solid, tip, g.n)
     ua = h * g.exposed_base_area + fin_g
     # Teertstra's h is inlet-referenced and holds the heat-capacity limit for the fin walls;
     # the exposed base adds area, so cap at m-dot c_p. Bulk-referenced h: epsilon-NTU.
     g_conv = np.minimum(ua, capacity)
-    if not inlet_ref.all():
-        bulk = forced_convection.bulk_referenced_conductance(ua, capacity)
-        g_conv = np.where(inlet_ref, g_conv, bulk)
+    if bulk.size:
+        g_conv[bulk] = forced_convection.bulk_referenced_conductance(ua[bulk], capacity[bulk])
 
     aspect = g.gap / g.height
     fanning = pressure_drop.fanning_channel(
-        re_dh, g.length, d_h, aspect, RE_TRANSITION, turbulent=f_turb
+        re_dh, g.length, d_h, aspect, RE_TRANSITION, turbulent=f_turb if turbulent.size else None
     )
     k_c, k_e = pressure_drop.loss_coefficients(g.sigma, cond.loss_coefficients)
     dp = pressure_drop.channel_pressure_drop(k_c, k_e, fanning, g.length, d_h, rho, v_ch)
@@ -376,13 +394,13 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
         for name, f in flags.items()
     }
     out["used"] = list(dict.fromkeys(used))
-    gone = (reasons & NONEXISTENT) != 0
-    if gone.any():
+    gone = np.flatnonzero(reasons & NONEXISTENT)
+    if gone.size:  # few rows: assigning by index costs far less than a masked copy
         for key, value in out.items():
             if isinstance(value, np.ndarray) and value.dtype.kind == "f":
                 if value.base is not None or not value.flags.writeable:
                     value = out[key] = value.copy()  # never write into a caller's array
-                np.copyto(value, np.nan, where=gone)
+                value[gone] = np.nan
     return out
 
 
@@ -497,7 +515,8 @@ def _heat_rate_at_limit(cond, conductances, spread, temperature_dependent, g_tot
     limits = [(cond.max_base_temperature, "r_mean"), (cond.max_source_temperature, "r_case")]
     limits = [(lim, key) for lim, key in limits if lim is not None]
     if not temperature_dependent:
-        return np.min([(lim - t_a) / spread_now[key] for lim, key in limits], axis=0)
+        rates = [(lim - t_a) / spread_now[key] for lim, key in limits]
+        return rates[0] if len(rates) == 1 else np.minimum(*rates)
     lowest = min(lim for lim, _ in limits)
 
     def excess(t_root):

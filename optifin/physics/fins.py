@@ -342,6 +342,8 @@ def efficiency_from_ml(ml):
     """
     x = np.asarray(ml, dtype=float)
     small = np.abs(x) < 1e-4
+    if not small.any():  # the usual case: skip the guards (np.where is costly in hot loops)
+        return np.tanh(x) / x
     safe = np.where(small, 1.0, x)
     x2 = x * x
     return np.where(small, 1.0 - x2 / 3.0 + 2.0 * x2 * x2 / 15.0, np.tanh(safe) / safe)

@@ -147,6 +147,9 @@ def nusselt_teertstra_1999(re_b_star, pr):
     small = np.minimum(developed, developing)
     large = np.maximum(developed, developing)
     positive = large > 0
+    if positive.all():  # the usual case: no guard needed (np.where is costly in hot loops)
+        ratio = small / large
+        return small / np.cbrt(1.0 + ratio * ratio * ratio)
     ratio = small / np.where(positive, large, 1.0)
     return np.where(positive, small / np.cbrt(1.0 + ratio * ratio * ratio), 0.0)
 

@@ -85,8 +85,14 @@ def fre_shah_london_1978(aspect):
     """
     aspect = np.asarray(aspect, dtype=float)
     _check(aspect >= 0, "duct aspect ratio must be >= 0")
-    a = np.where(aspect > 1.0, 1.0 / np.where(aspect > 1.0, aspect, 1.0), aspect)
-    return 24.0 * np.polynomial.polynomial.polyval(a, _FRE_COEFFICIENTS)
+    with np.errstate(divide="ignore"):
+        a = np.minimum(aspect, 1.0 / aspect)  # short side over long side; 0 and inf give 0
+    # Horner's rule by hand: polyval's generic path costs several times more per element
+    c = _FRE_COEFFICIENTS
+    poly = c[5]
+    for coefficient in c[4::-1]:
+        poly = poly * a + coefficient
+    return 24.0 * poly
 
 
 def hydraulic_diameter_rectangle(spacing, height):
