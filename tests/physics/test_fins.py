@@ -1,7 +1,7 @@
 """Tests of optifin.physics.fins: single fins of uniform cross-section.
 
 Every test names its kind: published check value, invariant or cross-method. Numbers marked
-[calc] come from /work/shared/reference/physics.md §1 or oracles.md §3, where they were
+[calc] come from the reference notes (physics.md) §1 or oracles.md §3, where they were
 computed from the closed forms; each of them is cross-checked here by an independent
 numerical solution of the fin equation (scipy.integrate.solve_bvp).
 """

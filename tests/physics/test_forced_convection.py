@@ -1,7 +1,7 @@
 """Tests of optifin.physics.forced_convection.
 
 Each test says in its docstring which kind it is: published check value, invariant or
-cross-method. Numbers tagged [calc] in /work/shared/reference/physics.md were computed from
+cross-method. Numbers tagged [calc] in the reference notes (physics.md) were computed from
 the formula; where a test uses one it is recomputed here by an independent route.
 """
 
