@@ -11,7 +11,6 @@ import pandas as pd
 
 from optifin.errors import SearchError
 from optifin.model import to_frame
-from optifin.model.sink import evaluate_arrays
 from optifin.problem.spec import LIMITS, Problem
 from optifin.search.encoding import Encoding
 from optifin.search.ga import run_ga
@@ -196,9 +195,8 @@ def design_table(problem: Problem, designs) -> pd.DataFrame:
     the smallest margin is the binding constraint. Rows are sorted by the first objective,
     best first.
     """
-    arrays = evaluate_arrays(designs, problem.condition, problem.library)
-    table = to_frame(designs, arrays, problem.library)
-    s = score(problem, designs)
+    s = score(problem, designs)  # one model evaluation serves the table and the margins
+    table = to_frame(designs, s.arrays, problem.library)
     for name, column in zip(constraint_names(problem), s.G.T, strict=True):
         table[f"margin_{name}"] = 0.0 - column  # 0.0 - x: no negative zeros in the table
     violated = [

@@ -183,14 +183,11 @@ def test_resistance_falls_with_fin_count_at_fixed_flow():
     assert r[-1] == pytest.approx(1 / capacity[-1], rel=0.1)
 
 
-def test_natural_convection_has_an_optimum_fin_count():
-    """Cross-method with the optimum spacing of Bar-Cohen & Rohsenow (1984): the reference
-    notes' natural-convection array (physics.md 4: W 100 mm, L 0.1 m, H 30 mm, t 1.5 mm,
-    k 209, dT about 50 K) has its lowest resistance near N = 12-14 (b_opt = 2.714 P^-1/4 =
-    6.4 mm, [calc]); the optimum here must sit there too."""
-    counts = np.arange(6, 22)
+def _natural_array(counts):
+    """The reference notes' natural-convection array (physics.md 4): W 100 mm, L 0.1 m,
+    H 30 mm, t 1.5 mm, 6063-T5, on a 5 mm base; 25 W over the whole base, convection only."""
     n = counts.size
-    d = dict(
+    designs = dict(
         fin_count=counts,
         fin_thickness=np.full(n, 1.5e-3),
         fin_height=np.full(n, 0.03),
@@ -207,7 +204,16 @@ def test_natural_convection_has_an_optimum_fin_count():
         radiation=False,
         max_base_temperature=350.0,
     )
-    r = evaluate(d, cond)["convection_resistance_K_per_W"].to_numpy()
+    return designs, cond
+
+
+def test_natural_convection_has_an_optimum_fin_count():
+    """Cross-method with the optimum spacing of Bar-Cohen & Rohsenow (1984): the reference
+    notes' natural-convection array (physics.md 4: W 100 mm, L 0.1 m, H 30 mm, t 1.5 mm,
+    k 209, dT about 50 K) has its lowest resistance near N = 12-14 (b_opt = 2.714 P^-1/4 =
+    6.4 mm, [calc]); the optimum here must sit there too."""
+    counts = np.arange(6, 22)
+    r = evaluate(*_natural_array(counts))["convection_resistance_K_per_W"].to_numpy()
     best = counts[int(np.argmin(r))]
     assert 11 <= best <= 14
 
@@ -312,22 +318,5 @@ def test_natural_array_against_the_reference_table():
     21.253 W for N = 12 / 14 / 16. Our model rates the two outer faces as isolated plates
     (Churchill & Chu 1975) and conducts through a 5 mm base, hence 4 %."""
     counts = np.array([12, 14, 16])
-    d = dict(
-        fin_count=counts,
-        fin_thickness=np.full(3, 1.5e-3),
-        fin_height=np.full(3, 0.03),
-        base_thickness=np.full(3, 5e-3),
-        width=np.full(3, 0.1),
-        length=np.full(3, 0.1),
-        material="al_6063_t5",
-        process="extrusion",
-    )
-    cond = Condition(
-        sources=[HeatSource(25.0, 0.1, 0.1)],
-        ambient_temperature=300.0,
-        cooling="natural",
-        radiation=False,
-        max_base_temperature=350.0,
-    )
-    q = evaluate(d, cond)["heat_rate_W"].to_numpy()
+    q = evaluate(*_natural_array(counts))["heat_rate_W"].to_numpy()
     np.testing.assert_allclose(q, [26.077, 25.265, 21.253], rtol=0.04)
