@@ -23,6 +23,7 @@ from optifin.errors import DataError, UnitError
 from optifin.units import to_si
 
 CURRENCIES = ("USD", "EUR", "GBP", "CNY", "JPY")
+FIN_TYPES = ("plate", "pin")  #: the fin types a process may make (``fin_types``)
 
 #: Fields of a material: kind of quantity for unit conversion.
 MATERIAL_FIELDS: dict[str, str] = {
@@ -85,6 +86,7 @@ class Process:
     stock: str
     limits: Mapping[str, Value]
     cost: Mapping[str, Value]
+    fin_types: tuple[str, ...] = ("plate",)
 
     def limit(self, name: str, default: float = np.nan) -> float:
         v = self.limits.get(name)
@@ -139,7 +141,7 @@ class Library:
         indexed by material code; ``emissivity`` is (material, finish) with NaN where a
         finish is not offered; process limits and cost terms (``min_gap``, ``cost_per_kg``,
         ...) by process code; ``allowed`` is (process, material) boolean; ``stock_block``
-        and ``monolithic`` by process code.
+        , ``monolithic``, ``makes_plates`` and ``makes_pins`` by process code.
         """
         if name not in self._arrays:
             self._arrays[name] = self._build(name)
@@ -161,6 +163,13 @@ class Library:
             out = np.array([p.stock == "block" for p in procs], dtype=bool)
         elif name == "monolithic":
             out = np.array([p.monolithic for p in procs], dtype=bool)
+        elif name == "allowed_plates":  # (process, material): forms it, and makes plates
+            plates = np.array(["plate" in p.fin_types for p in procs], dtype=bool)
+            out = self.array("allowed") & plates[:, None]
+        elif name == "makes_plates":
+            out = np.array(["plate" in p.fin_types for p in procs], dtype=bool)
+        elif name == "makes_pins":
+            out = np.array(["pin" in p.fin_types for p in procs], dtype=bool)
         elif name.startswith("cost_") and name[5:] in COST_FIELDS:
             out = np.array([p.cost_term(name[5:]) for p in procs])
         elif name in PROCESS_FIELDS:
@@ -228,7 +237,10 @@ def parse_library(materials_doc: Mapping, processes_doc: Mapping) -> Library:
 
     materials: dict[str, Material] = {}
     known_material = {*MATERIAL_FIELDS, "name", "family", "emissivity"}
-    known_process = {*PROCESS_FIELDS, "name", "materials", "monolithic", "stock", "cost"}
+    known_process = {
+        *PROCESS_FIELDS,
+        *("name", "materials", "monolithic", "stock", "cost", "fin_types"),
+    }
     for key, m in (materials_doc.get("materials") or {}).items():
         path = f"materials.{key}"
         for name in m:
@@ -279,8 +291,13 @@ def parse_library(materials_doc: Mapping, processes_doc: Mapping) -> Library:
         stock = p.get("stock", "net")
         if stock not in ("net", "block"):
             raise DataError(f"{path}.stock: expected 'net' or 'block', found {stock!r}")
+        fin_types = tuple(p.get("fin_types") or ("plate",))
+        for ft in fin_types:
+            if ft not in FIN_TYPES:
+                raise DataError(f"{path}.fin_types: expected some of {FIN_TYPES}, found {ft!r}")
         processes[key] = Process(
             key=key,
+            fin_types=fin_types,
             name=str(p.get("name", key)),
             materials=allowed,
             monolithic=bool(p.get("monolithic", True)),
@@ -369,7 +386,7 @@ def _set_override(target: dict, name: str, value: Any, path: str) -> None:
         for k, v in value.items():
             _set_override(sub, k, v, f"{path}.{k}")
         return
-    if name in ("name", "family", "materials", "monolithic", "stock"):
+    if name in ("name", "family", "materials", "monolithic", "stock", "fin_types"):
         target[name] = value
         return
     if isinstance(value, bool) or not isinstance(value, str | int | float):

@@ -17,7 +17,7 @@ import pandas as pd
 
 from optifin.library import Library, load_library
 from optifin.model.condition import Condition, HeatSource
-from optifin.model.design import Designs
+from optifin.model.design import FIN_TYPES, OPTIONAL, PIN_LAYOUTS, Designs
 from optifin.model.geometry import describe
 from optifin.model.sink import evaluate_arrays
 
@@ -28,7 +28,7 @@ ZERO_C = 273.15
 #: Result columns: (array key, column name, scale, offset, description). The column value
 #: is ``array * scale + offset``. Documented in the README.
 COLUMNS: tuple[tuple[str, str, float, float, str], ...] = (
-    ("fin_count", "fin_count", 1.0, 0.0, "number of fins"),
+    ("fin_count", "fin_count", 1.0, 0.0, "number of fins (of pins, for pin fins)"),
     ("fin_thickness", "fin_thickness_mm", 1e3, 0.0, "fin thickness"),
     ("fin_height", "fin_height_mm", 1e3, 0.0, "fin height above the base"),
     ("base_thickness", "base_thickness_mm", 1e3, 0.0, "base thickness"),
@@ -37,6 +37,19 @@ COLUMNS: tuple[tuple[str, str, float, float, str], ...] = (
     ("material", "material", 1.0, 0.0, "material key (optifin materials)"),
     ("process", "process", 1.0, 0.0, "process key (optifin processes)"),
     ("finish", "finish", 1.0, 0.0, "surface finish"),
+    ("fin_type", "fin_type", 1.0, 0.0, "plate or pin fins"),
+    ("fin_tip_thickness", "fin_tip_thickness_mm", 1e3, 0.0, "fin thickness at the tip (tapered)"),
+    ("pin_diameter", "pin_diameter_mm", 1e3, 0.0, "pin diameter"),
+    ("pin_pitch_transverse", "pin_pitch_transverse_mm", 1e3, 0.0, "pin pitch across the flow"),
+    ("pin_pitch_longitudinal", "pin_pitch_longitudinal_mm", 1e3, 0.0, "pin pitch along the flow"),
+    ("pin_layout", "pin_layout", 1.0, 0.0, "in-line or staggered pins"),
+    ("pin_count", "pin_count", 1.0, 0.0, "number of pins"),
+    ("pin_rows", "pin_rows", 1.0, 0.0, "rows of pins along the flow"),
+    ("base_material", "base_material", 1.0, 0.0, "base material where it differs from the fins"),
+    ("insert_material", "insert_material", 1.0, 0.0, "spreader insert material"),
+    ("insert_thickness", "insert_thickness_mm", 1e3, 0.0, "spreader insert thickness"),
+    ("insert_width", "insert_width_mm", 1e3, 0.0, "spreader insert width"),
+    ("insert_length", "insert_length_mm", 1e3, 0.0, "spreader insert length"),
     ("gap", "fin_gap_mm", 1e3, 0.0, "clear gap between fins b = (W - N t)/(N - 1)"),
     ("aspect_ratio", "aspect_ratio", 1.0, 0.0, "fin height over gap"),
     (
@@ -124,6 +137,22 @@ COLUMNS: tuple[tuple[str, str, float, float, str], ...] = (
     ("channel_reynolds", "channel_reynolds", 1.0, 0.0, "Re on the channel hydraulic diameter"),
     ("channel_reynolds_star", "channel_reynolds_star", 1.0, 0.0, "Re_b* = Re_b b/L"),
     ("pressure_drop", "pressure_drop_Pa", 1.0, 0.0, "static pressure drop across the sink"),
+    (
+        "system_pressure_drop",
+        "system_pressure_drop_Pa",
+        1.0,
+        0.0,
+        "fan operating point: sink plus extra system loss",
+    ),
+    ("bypass_velocity", "bypass_velocity_m_per_s", 1.0, 0.0, "air velocity around the sink"),
+    ("bypass_fraction", "bypass_fraction", 1.0, 0.0, "share of the duct flow that bypasses"),
+    (
+        "entropy_generation_rate",
+        "entropy_generation_rate_W_per_K",
+        1.0,
+        0.0,
+        "Q² R/T² + Δp V/T (Culham & Muzychka 2001)",
+    ),
     ("fan_power", "fan_power_W", 1.0, 0.0, "air power: pressure drop times flow"),
     (
         "air_temperature_rise",
@@ -180,20 +209,66 @@ def evaluate(
     if not isinstance(designs, Designs):
         designs = Designs.from_columns(designs, library)
     arrays = evaluate_arrays(designs, condition, library)
-    return to_frame(designs, arrays, library)
+    names = [s.name for s in condition.sources]
+    if len(set(names)) < len(names):
+        names = [f"{name}{i + 1}" for i, name in enumerate(names)]
+    return to_frame(designs, arrays, library, names)
 
 
-def to_frame(designs: Designs, arrays: Mapping, library: Library) -> pd.DataFrame:
-    """The result table of :func:`evaluate` from designs and model arrays."""
+#: Per-source temperature arrays (N, S) and the column suffix of each.
+PER_SOURCE = (
+    ("per_source_base_temperature", "base_temperature"),
+    ("per_source_peak_temperature", "peak_base_temperature"),
+    ("per_source_temperature", "temperature"),
+)
+CODED = {"fin_type": FIN_TYPES, "pin_layout": PIN_LAYOUTS}
+
+
+def _used_design_columns(designs: Designs) -> set[str]:
+    """The optional design columns a set of designs uses (the others are left out)."""
+    used = set()
+    if designs.has_pins:
+        used |= {"fin_type", "pin_diameter", "pin_pitch_transverse", "pin_pitch_longitudinal"}
+        used |= {"pin_layout", "pin_count", "pin_rows"}
+    if designs.is_tapered:
+        used.add("fin_tip_thickness")
+    if designs.has_base_material:
+        used.add("base_material")
+    if designs.has_inserts:
+        used |= {"insert_material", "insert_thickness", "insert_width", "insert_length"}
+    return used
+
+
+def _coded(codes: np.ndarray, key: str, library: Library):
+    return pd.Categorical.from_codes(np.asarray(codes, dtype=np.int64), categories=CODED[key])
+
+
+def to_frame(
+    designs: Designs, arrays: Mapping, library: Library, source_names=None
+) -> pd.DataFrame:
+    """The result table of :func:`evaluate` from designs and model arrays.
+
+    ``source_names`` names the per-source temperature columns (``<name>_temperature_C``
+    ...) of several sources; default ``source1``, ``source2``, ...
+    """
+    if source_names is None and "per_source_temperature" in arrays:
+        source_names = [f"source{i + 1}" for i in range(arrays["per_source_temperature"].shape[1])]
     data: dict[str, np.ndarray] = {}
     keys = {
         "material": library.material_keys,
         "process": library.process_keys,
         "finish": library.finishes,
+        "base_material": library.material_keys,
+        "insert_material": library.material_keys,
     }
+    used = _used_design_columns(designs)
     for key, name, scale, offset, _ in COLUMNS:
+        if key in OPTIONAL and key not in used:
+            continue
         if key in keys:
             data[name] = pd.Categorical.from_codes(getattr(designs, key), categories=keys[key])
+        elif key in CODED:
+            data[name] = _coded(getattr(designs, key), key, library)
         elif hasattr(designs, key):
             value = getattr(designs, key)
             data[name] = value if scale == 1.0 else value * scale
@@ -203,6 +278,19 @@ def to_frame(designs: Designs, arrays: Mapping, library: Library) -> pd.DataFram
                 data[name] = value
             else:
                 data[name] = value * scale + offset
+    if designs.has_pins:  # blank what does not apply to each fin type
+        pin = designs.fin_type == 1
+        data["fin_count"] = np.where(pin, arrays["pin_count"], designs.fin_count)
+        data["fin_thickness_mm"] = np.where(pin, np.nan, designs.fin_thickness * 1e3)
+        for name in ("pin_diameter_mm", "pin_pitch_transverse_mm", "pin_pitch_longitudinal_mm"):
+            data[name] = np.where(pin, data[name], np.nan)
+        for name in ("pin_count", "pin_rows"):
+            data[name] = np.where(pin, data[name], np.nan)
+        data["pin_layout"] = _coded(np.where(pin, designs.pin_layout, -1), "pin_layout", library)
+    for key, suffix in PER_SOURCE:
+        if key in arrays:
+            for i, name in enumerate(source_names):
+                data[f"{name}_{suffix}_C"] = arrays[key][:, i] - ZERO_C
     for name, flag in arrays["flags"].items():
         data[f"out_of_range_{name}"] = flag
     reasons = arrays["reasons"]

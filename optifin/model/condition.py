@@ -11,6 +11,7 @@ FIN_TIPS = ("adiabatic", "corrected")
 CHANNEL_HEAT_TRANSFER = ("auto", "teertstra_1999", "developed_laminar")
 SPREADING_METHODS = ("auto", "song_lee_au_1994", "muzychka_2003", "none")
 LOSS_COEFFICIENTS = ("borda_carnot", "culham_muzychka_2001")
+PIN_HEAT_TRANSFER = ("zukauskas_1972", "khan_2005")
 
 
 @dataclass(frozen=True)
@@ -48,11 +49,18 @@ class HeatSource:
 class Condition:
     """Operating condition: heat load, ambient air, cooling mode, limits and model options.
 
-    Forced convection is through a shrouded (ducted) sink: give ``approach_velocity`` (the
-    mean velocity over the fin frontal area W·H ahead of the sink) or ``volumetric_flow``
-    (all of it passes through the fin channels). Natural convection assumes vertical fins
-    on a vertical base, open at top and bottom, the flow length being the vertical fin
-    length.
+    Forced convection is through a shrouded (ducted) sink unless clearances are given:
+    give ``approach_velocity`` (the mean velocity over the fin frontal area W·H ahead of the
+    sink), ``volumetric_flow`` (all of it passes through the fin channels), or a ``fan``
+    (a :class:`optifin.physics.fan.FanCurve`, already combined for several fans) whose
+    operating point on the sink's system curve sets the flow. The system curve adds an
+    extra loss: ``extra_loss_coefficient`` K on the velocity in ``extra_loss_area`` (the
+    sink's frontal area W·H when None), and/or ``extra_loss_pressure`` Δp_ref at
+    ``extra_loss_flow`` (quadratic). ``side_clearance`` (each side) and ``top_clearance``
+    open the sink to bypass flow (``inf`` for an open stream); the approach velocity then
+    refers to the duct (W + 2 c_s)(H + c_t), or to the free stream when open.
+    Natural convection assumes vertical fins on a vertical base, open at top and bottom,
+    the flow length being the vertical fin length. Pin fins use ``pin_heat_transfer``.
     """
 
     sources: tuple[HeatSource, ...]
@@ -70,6 +78,14 @@ class Condition:
     channel_heat_transfer: str = "auto"
     spreading: str = "auto"
     loss_coefficients: str = "borda_carnot"
+    fan: object | None = None
+    extra_loss_coefficient: float = 0.0
+    extra_loss_area: float | None = None
+    extra_loss_pressure: float = 0.0
+    extra_loss_flow: float | None = None
+    side_clearance: float | None = None
+    top_clearance: float | None = None
+    pin_heat_transfer: str = "zukauskas_1972"
     notes: tuple[str, ...] = field(default_factory=tuple)
 
     def __post_init__(self):
@@ -85,12 +101,28 @@ class Condition:
         _choice("loss_coefficients", self.loss_coefficients, LOSS_COEFFICIENTS)
         if self.fin_tip is not None:
             _choice("fin_tip", self.fin_tip, FIN_TIPS)
-        if self.cooling == "forced":
+        _choice("pin_heat_transfer", self.pin_heat_transfer, PIN_HEAT_TRANSFER)
+        for name in ("side_clearance", "top_clearance", "extra_loss_coefficient"):
+            value = getattr(self, name)
+            if value is not None and not value >= 0:
+                raise ModelError(f"{name} must be >= 0, got {value}")
+        if self.extra_loss_pressure and not (self.extra_loss_flow or 0) > 0:
+            raise ModelError("extra_loss_pressure needs a positive extra_loss_flow")
+        if self.cooling == "forced" and self.fan is not None:
+            if self.approach_velocity is not None or self.volumetric_flow is not None:
+                raise ModelError("with a fan the flow is the operating point: give no flow")
+            if self.bypassed:
+                raise ModelError(
+                    "a fan drives a ducted (shrouded) sink: clearances and a fan do not combine"
+                )
+        elif self.cooling == "forced":
             given = (self.approach_velocity is not None) + (self.volumetric_flow is not None)
             if given != 1:
                 raise ModelError(
                     "forced cooling needs exactly one of approach_velocity or volumetric_flow"
                 )
+            if self.bypassed and self.approach_velocity is None:
+                raise ModelError("an open (bypassed) sink needs the approach_velocity")
             flow = (
                 self.approach_velocity
                 if self.approach_velocity is not None
@@ -106,6 +138,11 @@ class Condition:
                 raise ModelError(f"{name} must exceed the ambient temperature")
         if self.quantity < 1:
             raise ModelError("quantity must be at least 1")
+
+    @property
+    def bypassed(self) -> bool:
+        """True when clearances let part of the approach flow go around the fins."""
+        return bool(self.side_clearance or self.top_clearance)
 
     @property
     def total_power(self) -> float:

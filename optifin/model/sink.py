@@ -19,16 +19,28 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from optifin.errors import ModelError
 from optifin.library import Library
 from optifin.model.condition import Condition
 from optifin.model.cost import mass_and_cost
 from optifin.model.design import Designs
-from optifin.model.geometry import BIT, NONEXISTENT, Geometry, derive, pair_lookup
+from optifin.model.geometry import (
+    BIT,
+    NONEXISTENT,
+    Geometry,
+    derive,
+    pair_lookup,
+    pin_geometry,
+)
 from optifin.numerics import bracketed_root
 from optifin.physics import (
+    bypass,
+    fan,
     fins,
     forced_convection,
+    layered_base,
     natural_convection,
+    pin_fins,
     pressure_drop,
     registry,
     spreading,
@@ -38,6 +50,7 @@ from optifin.physics.air import T_MAX, air_properties
 
 GRAVITY = 9.80665
 RE_TRANSITION = 2300.0  # channel Reynolds number on D_h where the laminar models stop
+PIN_PRESSURE_DROP = "friction_factor_jakob_1938"  # registry name of the pin-array Δp
 SPREADING_CORRELATION = {
     "song_lee_au_1994": "spreading_song_lee_au_1994",
     "muzychka_2003": "flux_channel_influence_muzychka_2003",
@@ -48,32 +61,42 @@ SPREADING_CORRELATION = {
 class _Solid:
     """Per-design solid properties looked up from the library."""
 
-    k: np.ndarray  # fin and base conductivity [W/(m K)]
+    k: np.ndarray  # fin conductivity [W/(m K)]
     emissivity: np.ndarray  # [-]
     joint: np.ndarray  # bond-line resistance of one fin [K/W] (0 for monolithic sinks)
+    k_base: np.ndarray  # base conductivity [W/(m K)]
+    tapered: bool  # some fins are thinner at the tip than at the root
 
 
 def _solid(designs: Designs, g: Geometry, library: Library) -> _Solid:
     lib = library.array
     k = np.take(lib("conductivity"), designs.material)
+    k_base = k
+    if designs.has_base_material:
+        k_base = np.take(lib("conductivity"), designs.base_material_code)
     emissivity = pair_lookup(lib("emissivity"), designs.material, designs.finish)
     emissivity = np.fmax(emissivity, 0.0)  # a finish not offered (NaN): no radiation
     r_area = np.take(lib("joint_resistance"), designs.process)  # 0 for monolithic sinks
     groove = np.take(lib("groove_depth"), designs.process)
     # the bond line wets both groove walls and the groove bottom of each fin
     joint = r_area / (g.length * (g.t + 2 * groove))
-    return _Solid(k=k, emissivity=emissivity, joint=joint)
+    return _Solid(
+        k=k, emissivity=emissivity, joint=joint, k_base=k_base, tapered=designs.is_tapered
+    )
 
 
 def _fin_area(g: Geometry, tip: str) -> np.ndarray:
     """Area of one fin, both faces (and the tip through the corrected length) [m²]."""
-    h_c = g.height + (g.t / 2 if tip == "corrected" else 0.0)
+    h_c = g.height + (g.t_tip / 2 if tip == "corrected" else 0.0)
     return 2.0 * h_c * g.length
 
 
 def _finned_conductance(h, g: Geometry, solid: _Solid, tip: str, count) -> tuple:
     """Conductance of ``count`` fins at coefficient h, with any bond line in series."""
-    eta = fins.plate_fin_efficiency(h, solid.k, g.t, g.height, tip=tip)
+    if solid.tapered:
+        eta = fins.trapezoidal_fin_efficiency(h, solid.k, g.t, g.t_tip, g.height, tip=tip)
+    else:
+        eta = fins.plate_fin_efficiency(h, solid.k, g.t, g.height, tip=tip)
     one = eta * h * _fin_area(g, tip)
     if np.any(solid.joint > 0):
         one = fins.conductance_with_root_resistance(one, solid.joint)
@@ -97,21 +120,124 @@ def _inlet_air(temperature: float, pressure: float) -> tuple[float, ...]:
     )
 
 
-def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
+def _forced(g: Geometry, solid: _Solid, cond: Condition, pins: dict | None = None) -> dict:
+    """Forced convection through the array: flow (set, fan or bypass), h, G and Δp."""
     rho, cp, k_air, nu, pr = _inlet_air(cond.ambient_temperature, cond.pressure)
     frontal = g.width * g.height
-    flow = (
-        cond.approach_velocity * frontal
-        if cond.volumetric_flow is None
-        else (np.full_like(g.width, cond.volumetric_flow))
+    if pins is None:
+        hydraulics = functools.partial(_plate_hydraulics, g, cond, rho, nu)
+    else:
+        hydraulics = functools.partial(_pin_hydraulics, g, pins, rho, nu)
+    reasons = np.zeros(g.n.shape, dtype=np.int32)
+    extra = {}
+    if cond.fan is not None:
+
+        def system(flow):
+            return hydraulics(flow)["dp"] + _extra_loss(cond, flow, frontal, rho)
+
+        flow, fan_dp, ok = fan.operating_point(cond.fan, system, g.n.shape[0])
+        reasons |= np.where(ok, 0, BIT["fan_stall"]).astype(np.int32)
+        flow = np.where(ok, flow, 1e-3 * cond.fan.free_delivery)
+        extra["system_pressure_drop"] = np.where(ok, fan_dp, np.nan)
+    elif cond.bypassed:
+        _, bypass_area = bypass.bypass_area(
+            g.width, g.height, cond.side_clearance or 0.0, cond.top_clearance or 0.0
+        )
+
+        def sink_dp(v_front):
+            return hydraulics(v_front * frontal)["dp"]
+
+        v_s, v_b, _, ok = bypass.split_flow_bypass(
+            cond.approach_velocity, frontal, bypass_area, sink_dp, rho
+        )
+        reasons |= np.where(ok, 0, BIT["no_solution"]).astype(np.int32)
+        v_s = np.where(ok, v_s, cond.approach_velocity)
+        flow = v_s * frontal
+        extra["bypass_velocity"] = v_b
+        duct = frontal + bypass_area
+        with np.errstate(invalid="ignore"):
+            extra["bypass_fraction"] = np.where(
+                np.isfinite(duct), 1.0 - flow / (cond.approach_velocity * duct), np.nan
+            )
+    elif cond.volumetric_flow is None:
+        flow = cond.approach_velocity * frontal
+    else:
+        flow = np.full_like(g.width, cond.volumetric_flow)
+    hyd = hydraulics(flow)
+    capacity = rho * cp * flow  # m-dot c_p [W/K]
+    if pins is None:
+        out = _plate_heat_transfer(g, solid, cond, hyd, capacity, k_air, nu, pr)
+    else:
+        out = _pin_heat_transfer(g, pins, solid, cond, hyd, capacity, k_air, pr)
+    out["flags"].update(hyd["flags"])
+    out["used"] += hyd["used"]
+    out.update(
+        capacity=capacity,
+        flow=flow,
+        v_ch=hyd["velocity"],
+        re_dh=hyd["reynolds"],
+        dp=hyd["dp"],
+        fan_power=hyd["dp"] * flow,
+        reasons=reasons,
+        extra=extra,
     )
+    return out
+
+
+def _extra_loss(cond: Condition, flow, frontal, rho):
+    """Duct or grille loss in series with the sink: K (1/2) rho V^2 plus Δp_ref (Q/Q_ref)^2."""
+    loss = 0.0
+    if cond.extra_loss_coefficient:
+        area = frontal if cond.extra_loss_area is None else cond.extra_loss_area
+        loss = fan.system_loss_coefficient(flow, cond.extra_loss_coefficient, area, rho)
+    if cond.extra_loss_pressure:
+        loss = loss + fan.system_loss_reference(
+            flow, cond.extra_loss_pressure, cond.extra_loss_flow
+        )
+    return loss
+
+
+def _plate_hydraulics(g: Geometry, cond: Condition, rho, nu, flow) -> dict:
+    """Channel velocity, Reynolds number, friction and Δp of a plate-fin array at a flow."""
     # continuity: all of the flow passes the N-1 channels of b x H
     v_ch = flow / ((g.n - 1) * g.gap * g.height)
-    capacity = rho * cp * flow  # m-dot c_p [W/K]
-    re_star = forced_convection.channel_reynolds_star(v_ch, g.gap, g.length, nu)
     d_h = pressure_drop.hydraulic_diameter_rectangle(g.gap, g.height)
     re_dh = v_ch * d_h / nu
+    # turbulent channels are few: evaluate their correlations on that subset only
+    turbulent = np.flatnonzero(re_dh >= RE_TRANSITION)
+    f_turb = np.zeros_like(re_dh)  # Petukhov's f where turbulent (0: the laminar f rules)
+    f_turb[turbulent] = forced_convection.fanning_petukhov_1970(re_dh[turbulent])
+    aspect = g.gap / g.height
+    fanning = pressure_drop.fanning_channel(
+        re_dh, g.length, d_h, aspect, RE_TRANSITION, turbulent=f_turb if turbulent.size else None
+    )
+    k_c, k_e = pressure_drop.loss_coefficients(g.sigma, cond.loss_coefficients)
+    dp = pressure_drop.channel_pressure_drop(k_c, k_e, fanning, g.length, d_h, rho, v_ch)
+    flags = {
+        "fanning_apparent_muzychka_yovanovich": (re_dh < RE_TRANSITION)
+        & _out("fanning_apparent_muzychka_yovanovich", re_dh=re_dh)
+    }
+    used = ["fanning_apparent_muzychka_yovanovich"]
+    if turbulent.size:
+        used.append("fanning_petukhov_1970")
+        flags["fanning_petukhov_1970"] = (re_dh >= RE_TRANSITION) & _out(
+            "fanning_petukhov_1970", re_dh=re_dh
+        )
+    return {
+        "velocity": v_ch,
+        "reynolds": re_dh,
+        "d_h": d_h,
+        "f_turb": f_turb,
+        "turbulent": turbulent,
+        "dp": dp,
+        "flags": flags,
+        "used": used,
+    }
 
+
+def _plate_heat_transfer(g, solid, cond, hyd, capacity, k_air, nu, pr) -> dict:
+    v_ch, re_dh, d_h, f_turb = hyd["velocity"], hyd["reynolds"], hyd["d_h"], hyd["f_turb"]
+    re_star = forced_convection.channel_reynolds_star(v_ch, g.gap, g.length, nu)
     method = cond.channel_heat_transfer
     if method == "teertstra_1999":
         inlet_ref = np.ones_like(re_dh, dtype=bool)
@@ -119,10 +245,6 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
         inlet_ref = np.zeros_like(re_dh, dtype=bool)
     else:
         inlet_ref = re_dh < RE_TRANSITION
-    # turbulent channels are few: evaluate their correlations on that subset only
-    turbulent = np.flatnonzero(re_dh >= RE_TRANSITION)
-    f_turb = np.zeros_like(re_dh)  # Petukhov's f where turbulent (0: the laminar f rules)
-    f_turb[turbulent] = forced_convection.fanning_petukhov_1970(re_dh[turbulent])
     bulk = np.flatnonzero(~inlet_ref)
     if method == "developed_laminar":
         h = forced_convection.NUSSELT_PARALLEL_PLATES_T * k_air / (2 * g.gap)
@@ -144,13 +266,6 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
     if bulk.size:
         g_conv[bulk] = forced_convection.bulk_referenced_conductance(ua[bulk], capacity[bulk])
 
-    aspect = g.gap / g.height
-    fanning = pressure_drop.fanning_channel(
-        re_dh, g.length, d_h, aspect, RE_TRANSITION, turbulent=f_turb if turbulent.size else None
-    )
-    k_c, k_e = pressure_drop.loss_coefficients(g.sigma, cond.loss_coefficients)
-    dp = pressure_drop.channel_pressure_drop(k_c, k_e, fanning, g.length, d_h, rho, v_ch)
-
     flags = {}
     if method != "developed_laminar":
         if np.any(inlet_ref) or method == "teertstra_1999":
@@ -165,31 +280,67 @@ def _forced(g: Geometry, solid: _Solid, cond: Condition) -> dict:
             flags["nusselt_gnielinski_1976"] = ~inlet_ref & _out(
                 "nusselt_gnielinski_1976", re_dh=re_dh, pr=pr
             )
-    used.append("fanning_apparent_muzychka_yovanovich")
-    flags["fanning_apparent_muzychka_yovanovich"] = (re_dh < RE_TRANSITION) & _out(
-        "fanning_apparent_muzychka_yovanovich", re_dh=re_dh
-    )
-    if np.any(re_dh >= RE_TRANSITION):
-        used.append("fanning_petukhov_1970")
-        flags["fanning_petukhov_1970"] = (re_dh >= RE_TRANSITION) & _out(
-            "fanning_petukhov_1970", re_dh=re_dh
-        )
-
     return {
         "g_conv": g_conv,
         "h": h,
         "fin_efficiency": eta,
         "ua": ua,
         "heat_capacity_limited": inlet_ref & (ua > capacity),
-        "capacity": capacity,
-        "flow": flow,
-        "v_ch": v_ch,
-        "re_dh": re_dh,
         "re_star": re_star,
-        "dp": dp,
-        "fan_power": dp * flow,
         "flags": flags,
         "used": used,
+    }
+
+
+# -- pin-fin arrays in cross flow ----------------------------------------------------------------
+def _pin_hydraulics(g: Geometry, pins: dict, rho, nu, flow) -> dict:
+    """V_max, Re_D and the array pressure drop of a pin-fin array at a flow."""
+    v_front = flow / (g.width * g.height)
+    d = pins["diameter"]
+    v_max = pin_fins.pin_array_max_velocity(
+        v_front, d, pins["pitch_transverse"], pins["pitch_longitudinal"], pins["staggered"]
+    )
+    re = v_max * d / nu
+    a_t, b_l = pins["pitch_transverse"] / d, pins["pitch_longitudinal"] / d
+    dp = pin_fins.pressure_drop_pin_array(re, rho, v_max, pins["rows"], a_t, b_l, pins["staggered"])
+    name = PIN_PRESSURE_DROP
+    return {
+        "velocity": v_max,
+        "reynolds": re,
+        "dp": dp,
+        "flags": {name: _out(name, re_max=re, a_t=a_t, b_l=b_l)},
+        "used": [name],
+    }
+
+
+def _pin_heat_transfer(g, pins, solid, cond, hyd, capacity, k_air, pr) -> dict:
+    re, d = hyd["reynolds"], pins["diameter"]
+    a_t, b_l = pins["pitch_transverse"] / d, pins["pitch_longitudinal"] / d
+    if cond.pin_heat_transfer == "khan_2005":
+        name = "nusselt_khan_2005"
+        nu_d = pin_fins.nusselt_khan_2005(re, pr, a_t, b_l, pins["staggered"])
+        flag = _out(name, re_max=re, a_t=a_t, b_l=b_l)
+    else:
+        name = "nusselt_zukauskas_1972"
+        nu_d = pin_fins.nusselt_zukauskas_1972(
+            re, pr, pr, pins["staggered"], a_t / b_l, pins["rows"]
+        )
+        flag = pin_fins.zukauskas_1972_out_of_range(re, pr, pins["staggered"], a_t / b_l)
+    h = nu_d * k_air / d
+    eta = fins.pin_fin_efficiency(h, solid.k, d, g.height, tip=cond.tip)
+    h_c = g.height + (d / 4 if cond.tip == "corrected" else 0.0)
+    ua = g.n * eta * h * np.pi * d * h_c + h * g.exposed_base_area
+    # tube-bank h goes with the log-mean temperature difference: epsilon-NTU on the inlet
+    g_conv = forced_convection.bulk_referenced_conductance(ua, capacity)
+    return {
+        "g_conv": g_conv,
+        "h": h,
+        "fin_efficiency": eta,
+        "ua": ua,
+        "heat_capacity_limited": np.zeros(g.n.shape, bool),
+        "re_star": np.full(g.n.shape, np.nan),
+        "flags": {name: flag},
+        "used": [name],
     }
 
 
@@ -257,21 +408,52 @@ def evaluate_arrays(designs: Designs, condition: Condition, library: Library) ->
     over designs) and joined.
     """
     n = len(designs)
+    if designs.has_pins:
+        if condition.cooling == "natural":
+            raise ModelError(
+                "pin fins in natural convection: no published pin-array correlation is "
+                "implemented; use plate fins or forced cooling"
+            )
+        pin = designs.fin_type == 1
+        if not pin.all():  # plates and pins: each through its own model, then joined
+            parts = [np.flatnonzero(~pin), np.flatnonzero(pin)]
+            return _join(
+                n, [(i, evaluate_arrays(designs.take(i), condition, library)) for i in parts]
+            )
     if n <= BLOCK:
         return _evaluate_block(designs, condition, library)
+    return _join(
+        n,
+        [
+            (
+                slice(start, min(start + BLOCK, n)),
+                _evaluate_block(designs.take(slice(start, start + BLOCK)), condition, library),
+            )
+            for start in range(0, n, BLOCK)
+        ],
+    )
+
+
+def _join(n: int, parts) -> dict:
+    """One result dict from the results of row subsets (slices or index arrays)."""
     joined: dict = {}
     flags: dict[str, np.ndarray] = {}
     used: list[str] = []
-    for start in range(0, n, BLOCK):
-        part = _evaluate_block(designs.take(slice(start, start + BLOCK)), condition, library)
-        rows = slice(start, start + len(part["reasons"]))
+    everywhere = set.intersection(*(set(part) for _, part in parts))
+    for rows, part in parts:
         for key, value in part.items():
             if isinstance(value, np.ndarray):
                 if key not in joined:
-                    joined[key] = np.empty(n, dtype=value.dtype)
+                    shape = (n, *value.shape[1:])
+                    if key in everywhere:  # every row is written: no fill needed
+                        joined[key] = np.empty(shape, dtype=value.dtype)
+                    elif value.dtype.kind == "f":  # a metric some parts do not have
+                        joined[key] = np.full(shape, np.nan)
+                    else:
+                        joined[key] = np.zeros(shape, dtype=value.dtype)
                 joined[key][rows] = value
         for name, flag in part["flags"].items():
-            if name not in flags:  # a correlation first needed in a later block
+            if name not in flags:  # a correlation first needed in a later part
                 flags[name] = np.zeros(n, dtype=bool)
             flags[name][rows] = flag
         used.extend(u for u in part["used"] if u not in used)
@@ -286,11 +468,14 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
     g = derive(designs, library, [(s.size_x, s.size_y, s.x, s.y) for s in sources])
     solid = _solid(designs, g, library)
     t_a, q_total = cond.ambient_temperature, cond.total_power
-    r_base = g.base / (solid.k * g.base_area)
+    r_base = g.base / (solid.k_base * g.base_area)
     used: list[str] = ["fin_1d_uniform"]
     flags = {"fin_1d_uniform": np.zeros(len(designs), bool)}
+    pins = _pin_arrays(designs) if designs.has_pins else None  # a block is all plates or pins
+    if solid.tapered:
+        used.append("trapezoidal_fin_efficiency")
 
-    forced = _forced(g, solid, cond) if cond.cooling == "forced" else None
+    forced = _forced(g, solid, cond, pins) if cond.cooling == "forced" else None
     radiating = cond.radiation_on
 
     def conductances(t_root):
@@ -324,12 +509,21 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
     if spreading_method != "none":
         used.append(SPREADING_CORRELATION[spreading_method])
 
+    inserts = np.flatnonzero(designs.insert_material >= 0) if designs.has_inserts else None
+    if inserts is not None:
+        used.append("insert_base_resistance")
+
     def spread(g_total):
         """Mean (and peak) base rise per total watt, spreading and interface included."""
-        return _spreading(g, solid, cond, spreading_method, g_total / g.base_area, r_base)
+        out = _spreading(g, solid, cond, spreading_method, g_total / g.base_area, r_base)
+        if inserts is not None:
+            _insert_spreading(out, inserts, designs, g, solid, cond, g_total, library)
+        return out
 
     temperature_dependent = radiating or forced is None
     reasons = g.reasons.copy()
+    if forced is not None:
+        reasons |= forced["reasons"]
     if not temperature_dependent:
         part, g_total, g_rad = conductances(None)
         spread_out = spread(g_total)
@@ -376,9 +570,20 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
             fan_power=forced["fan_power"],
             air_temperature_rise=q_total / forced["capacity"],
             heat_capacity_limited=forced["heat_capacity_limited"],
+            # fan.entropy_generation_rate, with its scalar factors folded (Culham & Muzychka)
+            entropy_generation_rate=(q_total / t_a) ** 2 * r_total
+            + forced["extra"].get("system_pressure_drop", forced["dp"]) * (forced["flow"] / t_a),
+            **forced["extra"],
         )
     else:
         out["elenbaas_number"] = part["elenbaas"]
+    if pins is not None:
+        out["pin_count"] = g.n
+        out["pin_rows"] = pins["rows"]
+    if "per_source_mean" in spread_out:
+        out["per_source_base_temperature"] = t_a + q_total * spread_out["per_source_mean"]
+        out["per_source_peak_temperature"] = t_a + q_total * spread_out["per_source_peak"]
+        out["per_source_temperature"] = t_a + q_total * spread_out["per_source_case"]
     flags["fin_1d_uniform"] |= _out(
         "fin_1d_uniform", biot=fins.transverse_biot(part["h"], solid.k, g.t)
     )
@@ -410,8 +615,6 @@ def _spreading_method(cond: Condition) -> str:
     if method == "auto":
         return "song_lee_au_1994" if single else "muzychka_2003"
     if method == "song_lee_au_1994" and not single:
-        from optifin.errors import ModelError
-
         raise ModelError("the Song-Lee-Au closed form needs one centred source")
     return method
 
@@ -473,19 +676,89 @@ def _spreading(g, solid, cond, method, h_eff, r_base) -> dict:
     # eccentric or several sources: series solution and superposition
     sx, sy, cx, cy = _source_arrays(g, cond)
     mean, centre = spreading.flux_channel_influence_muzychka_2003(
-        g.width, g.length, g.base, solid.k, h_eff, sx, sy, cx, cy
+        g.width,
+        g.length,
+        g.base,
+        solid.k_base,
+        h_eff,
+        sx,
+        sy,
+        cx,
+        cy,
+        n_terms=series_terms(g.width, g.length, sx, sy),
     )
     rise_mean = np.einsum("nij,j->ni", mean, weights)  # per total watt, each source i
     rise_peak = np.einsum("nij,j->ni", centre, weights)
     interface = np.array([s.interface_resistance for s in sources]) * weights
     hottest = np.argmax(rise_mean, axis=1)
     rows = np.arange(rise_mean.shape[0])
+    case = rise_mean + interface
     return {
         "r_mean": rise_mean[rows, hottest],
         "r_peak": rise_peak.max(axis=1),
-        "r_case": (rise_mean + interface).max(axis=1),
+        "r_case": case.max(axis=1),
         "per_source_mean": rise_mean,
         "per_source_peak": rise_peak,
+        "per_source_case": case,
+    }
+
+
+#: Fourier terms per wavelength ratio plate/source of the flux-channel series, and bounds.
+TERMS_PER_RATIO, MIN_TERMS, MAX_TERMS = 6, 32, 128
+
+
+def series_terms(width, length, size_x, size_y) -> int:
+    """Terms of the flux-channel series for sources of these sizes on these plates.
+
+    The truncation error of the series (with its tail correction) falls as
+    (plate/(source · terms))³; 6 terms per plate-to-source ratio keep it below about 1e-4
+    of the rise (measured in the spreading module's notes: 128 terms at source = plate/20
+    give 2e-5 to 7e-5), and cost, which grows as terms², 4-16 times less than the fixed
+    128 for sources a fifth to a half of the plate.
+    """
+    ratio = max(
+        float(np.max(width)) / float(np.min(size_x)), float(np.max(length)) / float(np.min(size_y))
+    )
+    return int(np.clip(np.ceil(TERMS_PER_RATIO * ratio), MIN_TERMS, MAX_TERMS))
+
+
+def _insert_spreading(out, rows, designs, g, solid, cond, g_total, library) -> None:
+    """Replace the base rise of designs with a spreader insert (one centred source)."""
+    if len(cond.sources) != 1 or not cond.sources[0].centred:
+        raise ModelError("a spreader insert needs one heat source centred on the base")
+    s = cond.sources[0]
+    k_ins = np.take(library.array("conductivity"), designs.insert_material[rows])
+    h_eff = (g_total / g.base_area)[rows]
+    r_mean, r_peak = layered_base.insert_base_resistance(
+        g.width[rows],
+        g.length[rows],
+        g.base[rows],
+        solid.k_base[rows] if np.ndim(solid.k_base) else solid.k_base,
+        designs.insert_width[rows],
+        designs.insert_length[rows],
+        designs.insert_thickness[rows],
+        k_ins,
+        s.size_x,
+        s.size_y,
+        h_eff,
+    )
+    for key in ("r_mean", "r_peak", "r_case"):
+        out[key] = np.array(out[key], dtype=float)
+    out["r_mean"][rows] = r_mean
+    out["r_peak"][rows] = r_peak
+    out["r_case"][rows] = r_mean + s.interface_resistance
+
+
+def _pin_arrays(designs: Designs) -> dict:
+    """Pin diameter, pitches, layout and rows of a block of pin-fin designs."""
+    pg = pin_geometry(designs)
+    d, s_t, s_l = pg["stand_in"]  # the pins where defined, safe stand-ins elsewhere
+    return {
+        "diameter": d,
+        "pitch_transverse": s_t,
+        "pitch_longitudinal": s_l,
+        "staggered": designs.pin_layout == 1,
+        "rows": pg["rows"],
     }
 
 
