@@ -52,6 +52,8 @@ def design_from_values(problem: Problem, values: Mapping[str, Any]) -> Designs:
             try:
                 if kind == "length":
                     columns[name] = [to_si(v, "length", name) for v in items]
+                elif kind == "ratio":
+                    columns[name] = [to_si(v, "dimensionless", name) for v in items]
                 elif kind == "integer":
                     columns[name] = [_whole(v, name) for v in items]
                 else:

@@ -16,10 +16,13 @@ from optifin import __version__
 from optifin.errors import OptifinError
 
 SUMMARY_COLUMNS = (
+    "fin_type",
     "fin_count",
     "fin_thickness_mm",
     "fin_height_mm",
     "base_thickness_mm",
+    "pin_diameter_mm",
+    "pin_layout",
     "material",
     "process",
 )
@@ -87,6 +90,8 @@ def _parser() -> argparse.ArgumentParser:
     p = command("materials", _materials, "the material table with sources")
     p.add_argument("--json", action="store_true")
     p = command("processes", _processes, "the process table with sources")
+    p.add_argument("--json", action="store_true")
+    p = command("fans", _fans, "the demo fan curves (invented data for examples)")
     p.add_argument("--json", action="store_true")
     p = command("schema", _schema, "the JSON Schema of problem files")
     p.add_argument("--out", help="write to this file instead of stdout")
@@ -193,6 +198,7 @@ def _processes(args) -> int:
     rows = []
     for p in lib.processes.values():
         row = {"key": p.key, "name": p.name, "materials": ", ".join(p.materials)}
+        row["fin types"] = ", ".join(p.fin_types)
         row.update({k: v.text for k, v in p.limits.items()})
         row.update({f"cost {k}": v.text for k, v in p.cost.items()})
         row["sources"] = ", ".join(
@@ -220,6 +226,41 @@ def _table(rows, lib, as_json: bool) -> int:
     for k in used:
         print(f"  {k}: {lib.source_citation(k)}")
     return 0
+
+
+def _fans(args) -> int:
+    from optifin.fans import bundled_path, load_fans
+
+    fans = load_fans()
+    rows = [
+        {
+            "key": f.key,
+            "name": f.name,
+            "size_mm": round(f.size * 1e3, 3),
+            "power_W": f.power,
+            "free_delivery_CFM": round(f.curve.free_delivery / CFM, 3),
+            "shutoff_pressure_Pa": round(f.curve.shutoff_pressure, 3),
+            "curve": [
+                {"flow_CFM": round(q / CFM, 4), "pressure_Pa": round(p, 4)}
+                for q, p in zip(f.curve.flow, f.curve.pressure, strict=True)
+            ],
+        }
+        for f in fans.values()
+    ]
+    if args.json:
+        print(json.dumps({"file": bundled_path(), "demo_data": True, "fans": rows}, indent=2))
+        return 0
+    print(f"{bundled_path()}: invented demo fans, for examples and tests only")
+    for r in rows:
+        print(
+            f"{r['key']}: {r['name']}; {r['size_mm']:g} mm, {r['power_W']:g} W, "
+            f"free delivery {r['free_delivery_CFM']:g} CFM, shut-off "
+            f"{r['shutoff_pressure_Pa']:g} Pa"
+        )
+    return 0
+
+
+CFM = 0.3048**3 / 60.0  #: one cubic foot per minute [m³/s]
 
 
 def _schema(args) -> int:

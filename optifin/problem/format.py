@@ -24,9 +24,11 @@ from optifin.model.condition import (
     COOLING_MODES,
     FIN_TIPS,
     LOSS_COEFFICIENTS,
+    PIN_HEAT_TRANSFER,
     SPREADING_METHODS,
 )
-from optifin.problem.spec import LIMITS, OBJECTIVES
+from optifin.model.design import FIN_TYPES, PIN_LAYOUTS
+from optifin.problem.spec import LIMITS, LOWER_LIMITS, OBJECTIVES
 from optifin.units import to_si
 
 ALGORITHMS = ("auto", "nsga2", "nsga3", "exact")
@@ -645,13 +647,19 @@ class Range(Node):
 class Choices(Node):
     """A categorical design variable: a fixed key, a list of keys or ``{choices: [...]}``."""
 
-    source: str  #: "material", "process" or "finish"
+    source: str | None = None  #: "material", "process" or "finish"
+    options: tuple[str, ...] = ()  #: fixed options where there is no library source
+
+    def _item(self) -> Choice:
+        return Choice(source=self.source) if self.source else Choice(options=self.options)
 
     def expected(self) -> str:
+        if not self.source:
+            return f"one of {', '.join(self.options)}, a list of them or {{choices: [...]}}"
         return f"a {self.source} key, a list of them or {{choices: [...]}}"
 
     def parse(self, value: Any, path: str, ctx: Context) -> Any:
-        item = Choice(source=self.source)
+        item = self._item()
         if isinstance(value, str):
             v = item.parse(value, path, ctx)
             return INVALID if v is INVALID else (v,)
@@ -675,7 +683,7 @@ class Choices(Node):
         return INVALID if bad else tuple(keys)
 
     def body(self, choices) -> dict:
-        one = Choice(source=self.source).schema(choices)
+        one = self._item().schema(choices)
         many = {"type": "array", "items": one, "minItems": 1, "uniqueItems": True}
         return {
             "anyOf": [
@@ -882,7 +890,79 @@ AMBIENT = Section(
     description="The ambient air.",
 )
 
-_FLOWS = ("approach_velocity", "volumetric_flow")
+_FLOWS = ("approach_velocity", "volumetric_flow", "fan")
+FAN = Section(
+    fields={
+        "model": Text(
+            pattern=KEY_PATTERN,
+            description="Key of a fan in the fan data file (`optifin fans` lists them).",
+        ),
+        "curve": Section(
+            fields={
+                "flow": ListOf(
+                    item=Quantity(kind="volumetric_flow", example='"10 CFM"', sign="nonnegative"),
+                    min_items=2,
+                    noun="flow",
+                    description="Flows of the curve's points, increasing.",
+                ),
+                "pressure": ListOf(
+                    item=Quantity(kind="pressure", example='"0.2 inH2O"', sign="nonnegative"),
+                    min_items=2,
+                    noun="pressure",
+                    description="Static pressures at those flows, not increasing.",
+                ),
+            },
+            required=("flow", "pressure"),
+            description="The fan curve as a table of flow and static pressure.",
+        ),
+        "count": Integer(minimum=1, maximum=64, description="Identical fans; default 1."),
+        "arrangement": Choice(
+            options=("parallel", "series"),
+            description="How several fans combine: side by side (flows add) or in series "
+            "(pressures add); default parallel.",
+        ),
+    },
+    rules=(AtMostOne(("model", "curve")),),
+    description="A fan drives the air: the flow is where its curve meets the system curve.",
+)
+EXTRA_LOSS = Section(
+    fields={
+        "coefficient": Quantity(
+            kind="dimensionless",
+            example="1.5",
+            sign="positive",
+            bare=True,
+            description="Loss coefficient K of ducts or grilles, on the velocity in `area`.",
+        ),
+        "area": Quantity(
+            kind="area",
+            example='"40 cm^2"',
+            sign="positive",
+            description="Flow area the coefficient refers to; default the sink frontal area.",
+        ),
+        "pressure_drop": Quantity(
+            kind="pressure",
+            example='"8 Pa"',
+            sign="positive",
+            description="A measured extra loss at the flow `at_flow`, scaled with flow squared.",
+        ),
+        "at_flow": Quantity(
+            kind="volumetric_flow",
+            example='"20 CFM"',
+            sign="positive",
+            description="Flow at which `pressure_drop` was measured.",
+        ),
+    },
+    description="Extra system loss in series with the sink (with a fan).",
+)
+CLEARANCE = Section(
+    fields={
+        "side": _length("Gap beside each side of the sink to the duct wall.", "nonnegative"),
+        "top": _length("Gap between the fin tips and the duct wall.", "nonnegative"),
+        "open": Flag(description="No duct at all: the sink stands in an open stream."),
+    },
+    description="An unshrouded sink: air can pass around the fins (bypass). Default shrouded.",
+)
 COOLING = Section(
     fields={
         "mode": Choice(
@@ -901,6 +981,9 @@ COOLING = Section(
             sign="positive",
             description="Forced: air flow through the fin channels.",
         ),
+        "fan": FAN,
+        "extra_loss": EXTRA_LOSS,
+        "clearance": CLEARANCE,
         "radiation": Flag(
             description="Include radiation; default on in natural, off in forced convection."
         ),
@@ -911,7 +994,9 @@ COOLING = Section(
     required=("mode",),
     rules=(
         ExactlyOneWhen("mode", "forced", _FLOWS),
-        AbsentWhen("mode", "natural", _FLOWS, "buoyancy drives the air"),
+        AbsentWhen(
+            "mode", "natural", (*_FLOWS, "extra_loss", "clearance"), "buoyancy drives the air"
+        ),
     ),
     description="How the air moves.",
 )
@@ -945,9 +1030,30 @@ VARIABLES = Section(
         "material": Choices(source="material", description="Material key(s) of the library."),
         "process": Choices(source="process", description="Process key(s) of the library."),
         "finish": Choices(source="finish", description="Surface finish(es); default bare."),
+        "fin_type": Choices(
+            options=FIN_TYPES, description="plate fins, pin fins, or both; default plate."
+        ),
+        "fin_taper": Range(
+            value=Quantity(
+                kind="dimensionless", example="0.7", sign="positive", bare=True, upper=1.0
+            ),
+            description="Plate fins: tip thickness over root thickness (1 untapered, the "
+            "default); fixed or a range {min, max, step}.",
+        ),
+        "pin_diameter": Range(value=_length(), description="Pin fins: " + _LENGTH_VARIABLE),
+        "pin_pitch_transverse": Range(
+            value=_length(), description="Pin fins, pitch across the flow: " + _LENGTH_VARIABLE
+        ),
+        "pin_pitch_longitudinal": Range(
+            value=_length(), description="Pin fins, pitch along the flow: " + _LENGTH_VARIABLE
+        ),
+        "pin_layout": Choices(
+            options=PIN_LAYOUTS, description="Pin fins: inline, staggered or both; default inline."
+        ),
     },
-    required=("fin_count", "fin_thickness", "fin_height", "base_thickness", "material", "process"),
-    description="Design variables: each fixed, a range, or choices.",
+    required=("fin_height", "base_thickness", "material", "process"),
+    description="Design variables: each fixed, a range, or choices. Plate fins need "
+    "fin_count and fin_thickness; pin fins need pin_diameter and the two pitches.",
 )
 
 _LIMIT_EXAMPLES = {
@@ -956,6 +1062,7 @@ _LIMIT_EXAMPLES = {
     "power": '"2 W"',
     "mass": '"0.5 kg"',
     "dimensionless": '"12 USD"',
+    "volumetric_flow": '"15 CFM"',
 }
 CONSTRAINTS = Section(
     fields={
@@ -968,8 +1075,17 @@ CONSTRAINTS = Section(
             description=f"Upper limit on the {model_key.replace('_', ' ')}.",
         )
         for key, (model_key, kind) in LIMITS.items()
+    }
+    | {
+        key: Quantity(
+            kind=kind,
+            example=_LIMIT_EXAMPLES[kind],
+            sign="positive",
+            description=f"Lower limit on the {model_key.replace('_', ' ')}.",
+        )
+        for key, (model_key, kind) in LOWER_LIMITS.items()
     },
-    description="Upper limits every design must meet.",
+    description="Limits every design must meet.",
 )
 
 PRODUCTION = Section(
@@ -996,6 +1112,10 @@ MODEL = Section(
         "spreading": Choice(options=SPREADING_METHODS, description="Spreading resistance."),
         "loss_coefficients": Choice(
             options=LOSS_COEFFICIENTS, description="Entrance and exit loss coefficients."
+        ),
+        "pin_heat_transfer": Choice(
+            options=PIN_HEAT_TRANSFER,
+            description="Pin-array Nusselt correlation; default zukauskas_1972.",
         ),
     },
     description="Model options.",
@@ -1075,6 +1195,12 @@ PROCESS_OVERRIDE = Section(
             description="The materials the process can form.",
         ),
         "monolithic": Flag(description="Fins and base in one piece (false: joined fins)."),
+        "fin_types": ListOf(
+            item=Choice(options=FIN_TYPES),
+            min_items=1,
+            noun="fin type",
+            description="What the process can form: plate, pin or both; default plate.",
+        ),
         "stock": Choice(options=("net", "block"), description="Stock: net shape or a block."),
     },
     description="Fields of one process; a new process needs every limit and its materials.",

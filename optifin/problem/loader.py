@@ -37,6 +37,7 @@ from optifin.problem.format import (
     MATERIALS,
     PROBLEM,
     PROCESSES,
+    VARIABLES,
     Context,
     Span,
     found,
@@ -46,6 +47,9 @@ from optifin.problem.format import (
 )
 from optifin.problem.spec import (
     LIMITS,
+    LOWER_LIMITS,
+    PIN_VARIABLES,
+    PLATE_VARIABLES,
     VARIABLE_KINDS,
     Envelope,
     Objective,
@@ -59,7 +63,22 @@ SEA_LEVEL_PRESSURE = 101325.0  # Pa, the standard atmosphere at sea level
 PRESSURE_RANGE = (10e3, 200e3)  # Pa, what the air-property tables cover
 ALTITUDE_RANGE = (-1000.0, 47000.0)  # m, the tabulated standard atmosphere
 AMBIENT_MAX = 500.0  # K, the upper end Condition accepts
-_NATURAL_ONLY_FORCED = ("pressure_drop", "fan_power")
+_NATURAL_ONLY_FORCED = (
+    "pressure_drop",
+    "fan_power",
+    "volumetric_flow",
+    "entropy_generation_rate",
+)
+#: Defaults of variables a problem may leave out (lengths only where that fin type is used).
+_CHOICE_DEFAULTS = {"finish": ("bare",), "fin_type": ("plate",), "pin_layout": ("inline",)}
+#: Stand-ins for the variables of a fin type the problem does not use (never evaluated).
+_UNUSED = {
+    "fin_count": 2,
+    "fin_thickness": 1e-3,
+    "pin_diameter": 1e-3,
+    "pin_pitch_transverse": 3e-3,
+    "pin_pitch_longitudinal": 3e-3,
+}
 _TEMPERATURE_LIMITS = ("max_base_temperature", "max_source_temperature")
 
 
@@ -371,6 +390,87 @@ class _Resolver:
         ts = self.out["surroundings_temperature"]
         if ts is not None and ts > T_MAX:
             self.error("cooling.surroundings_temperature", f"{ts.text} is above {T_MAX:g} K")
+        self.out["fan"] = self._fan(cool.get("fan"))
+        loss = _section(cool, "extra_loss")
+        if loss and "fan" not in cool:
+            self.error(
+                "cooling.extra_loss", "an extra system loss needs a fan (cooling.fan) to act on"
+            )
+        if loss.get("pressure_drop") is not None and "at_flow" not in loss:
+            self.error("cooling.extra_loss.at_flow", "missing (the flow of pressure_drop)")
+        if "area" in loss and "coefficient" not in loss:
+            self.error("cooling.extra_loss.area", "area needs a coefficient to go with it")
+        self.out["extra_loss"] = loss
+        clearance = _section(cool, "clearance")
+        if clearance.get("open") and ("side" in clearance or "top" in clearance):
+            self.error("cooling.clearance", "give open: true or side/top gaps, not both")
+        if clearance and "fan" in cool:
+            self.error(
+                "cooling.clearance",
+                "a fan drives a ducted (shrouded) sink; with clearances give the "
+                "approach_velocity instead",
+            )
+        if clearance and "volumetric_flow" in cool:
+            self.error(
+                "cooling.clearance",
+                "an open sink needs the approach_velocity of the duct or stream, not a flow",
+            )
+        if clearance.get("open"):
+            side = top = math.inf
+        else:
+            side, top = clearance.get("side"), clearance.get("top")
+        self.out["side_clearance"] = None if side is INVALID else side
+        self.out["top_clearance"] = None if top is INVALID else top
+
+    def _fan(self, fan: Any):
+        """The (combined) fan curve of cooling.fan, or None."""
+        if not isinstance(fan, dict):
+            return None
+        from optifin.fans import load_fans
+        from optifin.physics import fan as fan_physics
+
+        path = "cooling.fan"
+        if "model" in fan and fan["model"] is not INVALID:
+            try:
+                fans = load_fans()
+            except DataError as exc:
+                self.error(join(path, "model"), f"the fan data file cannot be read: {exc}")
+                return None
+            key = fan["model"]
+            if key not in fans:
+                self.error(
+                    join(path, "model"),
+                    f"unknown fan {key!r}{nearest(key, fans)} (known: {', '.join(fans)})",
+                )
+                return None
+            curve = fans[key].curve
+        elif isinstance(fan.get("curve"), dict):
+            table = fan["curve"]
+            flow, pressure = table.get("flow"), table.get("pressure")
+            if flow is None or pressure is None or INVALID in (*flow, *pressure):
+                return None
+            if len(flow) != len(pressure):
+                self.error(
+                    join(path, "curve"),
+                    f"{len(flow)} flows but {len(pressure)} pressures; give one pressure per flow",
+                )
+                return None
+            try:
+                curve = fan_physics.fan_curve(
+                    [float(q) for q in flow], [float(p) for p in pressure], name="curve"
+                )
+            except ModelError as exc:
+                self.error(join(path, "curve"), str(exc))
+                return None
+        else:
+            if "curve" not in fan:
+                self.error(path, "give the fan as model (a fan data key) or curve (a table)")
+            return None
+        count = fan.get("count", 1)
+        arrangement = fan.get("arrangement", "parallel")
+        if count is INVALID or arrangement is INVALID:
+            return None
+        return fan_physics.combine(curve, int(count), arrangement) if count > 1 else curve
 
     # design variables and the envelope
     def variables(self) -> None:
@@ -384,8 +484,32 @@ class _Resolver:
             value = var.get(name)
             if value is not INVALID and value is not None:
                 self.spans[name] = value
-        if "finish" not in raw:
-            self.spans["finish"] = ("bare",)
+        for name, default in _CHOICE_DEFAULTS.items():
+            if name not in raw:
+                self.spans[name] = default
+        if "fin_taper" not in raw:
+            self.spans["fin_taper"] = Span(1.0, 1.0)
+        types = self.spans.get("fin_type", ())
+        for fin_type, names in (("plate", PLATE_VARIABLES), ("pin", PIN_VARIABLES)):
+            for name in names:
+                if fin_type in types and name not in raw:
+                    self.error(
+                        join("variables", name),
+                        f"missing (needed for {fin_type} fins: "
+                        f"{VARIABLES.fields[name].expected()})",
+                    )
+                elif fin_type not in types and name not in raw:
+                    self.spans[name] = Span(_UNUSED[name], _UNUSED[name])
+        if "pin" in types and self.mode == "natural":
+            self.error(
+                "variables.fin_type",
+                "pin fins in natural convection: no published pin-array correlation is "
+                "implemented; use plate fins or forced cooling",
+            )
+        if "pin" not in types:
+            for name in ("pin_layout", *PIN_VARIABLES):
+                if name in raw:
+                    self.error(join("variables", name), "pin fins are not among variables.fin_type")
         for name, key in (("width", "max_width"), ("length", "max_length")):
             if name in raw:
                 continue
@@ -419,7 +543,7 @@ class _Resolver:
         self.widest = self._largest("width", "max_width")
         self.longest = self._largest("length", "max_length")
         count, t = self.spans.get("fin_count"), self.spans.get("fin_thickness")
-        if count is not None and t is not None and self.widest is not None:
+        if "plate" in types and count is not None and t is not None and self.widest is not None:
             if count.low * t.low >= self.widest:
                 self.error(
                     "variables.fin_count",
@@ -524,7 +648,7 @@ class _Resolver:
                     f"{value.text} is above {T_MAX:g} K, beyond the air-property tables",
                 )
         natural = self.mode == "natural"
-        for key, (model_key, _) in LIMITS.items():
+        for key, (model_key, _) in (LIMITS | LOWER_LIMITS).items():
             if natural and model_key in _NATURAL_ONLY_FORCED and key in raw_limits:
                 self.error(
                     join("constraints", key),
@@ -568,6 +692,18 @@ class _Resolver:
                 f"material among {', '.join(mats)} ({made})",
             )
             return
+        types = self.spans.get("fin_type") or ("plate",)
+        makers = {t: [p for p in procs if t in lib.processes[p].fin_types] for t in types}
+        for t, who in makers.items():
+            if not who:
+                able = [k for k, p in lib.processes.items() if t in p.fin_types]
+                self.error(
+                    "variables.fin_type"
+                    if "fin_type" in self.doc.get("variables", {})
+                    else "variables.process",
+                    f"no process among {', '.join(procs)} makes {t} fins "
+                    f"(processes that do: {', '.join(able) or 'none'})",
+                )
         usable = [m for k, m in enumerate(mats) if pairs[:, k].any()]
         emissivity = lib.array("emissivity")[np.ix_([lib.material_code(m) for m in usable], fi)]
         if not np.isfinite(emissivity).any():
@@ -609,7 +745,7 @@ class _Resolver:
             for n, s in self.spans.items()
             if isinstance(s, Span)
             and not s.fixed
-            and VARIABLE_KINDS[n] == "length"
+            and VARIABLE_KINDS[n] in ("length", "ratio")
             and s.step is None
         ]
         if continuous:
@@ -679,14 +815,29 @@ def _assemble(
         channel_heat_transfer=model.get("channel_heat_transfer", "auto"),
         spreading=model.get("spreading", "auto"),
         loss_coefficients=model.get("loss_coefficients", "borda_carnot"),
+        pin_heat_transfer=model.get("pin_heat_transfer", "zukauskas_1972"),
+        fan=values["fan"],
+        extra_loss_coefficient=float(values["extra_loss"].get("coefficient", 0.0)),
+        extra_loss_area=_float_or_none(values["extra_loss"].get("area")),
+        extra_loss_pressure=float(values["extra_loss"].get("pressure_drop", 0.0)),
+        extra_loss_flow=_float_or_none(values["extra_loss"].get("at_flow")),
+        side_clearance=_float_or_none(values["side_clearance"]),
+        top_clearance=_float_or_none(values["top_clearance"]),
         **optional,
     )
     spans = _section(parsed, "variables")
+    types = spans.get("fin_type") or _CHOICE_DEFAULTS["fin_type"]
     variables = []
     for name, kind in VARIABLE_KINDS.items():
         span = spans.get(name)
-        if span is None:  # defaulted: finish, or width/length from the envelope
-            span = ("bare",) if name == "finish" else None
+        if span is None:  # defaulted: choices, taper, unused fin type, or the envelope
+            span = _CHOICE_DEFAULTS.get(name)
+        if span is None and name == "fin_taper":
+            span = Span(1.0, 1.0)
+        if span is None and name in _UNUSED:
+            used = ("plate" in types) if name in PLATE_VARIABLES else ("pin" in types)
+            if not used:
+                span = Span(_UNUSED[name], _UNUSED[name])
         if span is None:
             env = _section(parsed, "envelope")[f"max_{name}"]
             span = Span(env, env)
@@ -736,6 +887,10 @@ def _assemble(
     )
 
 
+def _float_or_none(value: Any) -> float | None:
+    return None if value is None else float(value)
+
+
 def _canonical(value: Any) -> Any:
     """Sorted keys, plain types and floats to 12 significant digits (so "400 LFM" and
     "2.032 m/s" give the same problem)."""
@@ -780,6 +935,20 @@ def _resolved(
                 "volumetric_flow": c.volumetric_flow,
                 "radiation": c.radiation_on,
                 "surroundings_temperature": c.t_surroundings,
+                "fan": None
+                if c.fan is None
+                else {"flow": list(c.fan.flow), "pressure": list(c.fan.pressure)},
+                "extra_loss": [
+                    c.extra_loss_coefficient,
+                    c.extra_loss_area,
+                    c.extra_loss_pressure,
+                    c.extra_loss_flow,
+                ],
+                "clearance": [
+                    None if c.side_clearance in (None, math.inf) else c.side_clearance,
+                    None if c.top_clearance in (None, math.inf) else c.top_clearance,
+                    c.side_clearance == math.inf,
+                ],
             },
             "envelope": {
                 "max_width": envelope.max_width,
@@ -802,6 +971,7 @@ def _resolved(
                 "channel_heat_transfer": c.channel_heat_transfer,
                 "spreading": c.spreading,
                 "loss_coefficients": c.loss_coefficients,
+                "pin_heat_transfer": c.pin_heat_transfer,
             },
             "search": {
                 "algorithm": search.algorithm,

@@ -24,7 +24,16 @@ VARIABLE_KINDS: dict[str, str] = {
     "material": "choice",
     "process": "choice",
     "finish": "choice",
+    "fin_type": "choice",
+    "fin_taper": "ratio",
+    "pin_diameter": "length",
+    "pin_pitch_transverse": "length",
+    "pin_pitch_longitudinal": "length",
+    "pin_layout": "choice",
 }
+#: Variables that only plate-fin or only pin-fin designs use.
+PLATE_VARIABLES = ("fin_count", "fin_thickness")
+PIN_VARIABLES = ("pin_diameter", "pin_pitch_transverse", "pin_pitch_longitudinal")
 
 #: Objectives: model array key and the default sense.
 OBJECTIVES: dict[str, tuple[str, str]] = {
@@ -37,6 +46,8 @@ OBJECTIVES: dict[str, tuple[str, str]] = {
     "material_cost": ("material_cost", "minimise"),
     "total_cost": ("total_cost", "minimise"),
     "volume": ("volume", "minimise"),
+    "volumetric_flow": ("volumetric_flow", "maximise"),
+    "entropy_generation_rate": ("entropy_generation_rate", "minimise"),
 }
 
 #: Upper-limit constraints: problem key -> (model array key, quantity kind).
@@ -49,15 +60,20 @@ LIMITS: dict[str, tuple[str, str]] = {
     "max_cost": ("total_cost", "dimensionless"),
     "max_material_cost": ("material_cost", "dimensionless"),
 }
+#: Lower-limit constraints: problem key -> (model array key, quantity kind).
+LOWER_LIMITS: dict[str, tuple[str, str]] = {
+    "min_volumetric_flow": ("volumetric_flow", "volumetric_flow"),
+}
 
 
 @dataclass(frozen=True)
 class Variable:
     """One design variable: fixed (``value``), a stepped or continuous range, or choices.
 
-    For ``integer`` and ``length`` kinds: ``low``/``high`` in SI (``step`` optional, SI; an
-    integer always steps by 1). For ``choice``: ``choices`` are library keys. A fixed
-    variable has ``low == high`` (numbers) or one choice.
+    For ``integer``, ``length`` and ``ratio`` kinds: ``low``/``high`` in SI (``step``
+    optional, SI; an integer always steps by 1). For ``choice``: ``choices`` are keys (of
+    the library, or fin types and pin layouts). A fixed variable has ``low == high``
+    (numbers) or one choice.
     """
 
     name: str
@@ -89,6 +105,18 @@ class Variable:
             raise ValueError(f"{self.name} is continuous")
         count = int(np.floor((self.high - self.low) / step + 1e-9)) + 1
         return self.low + step * np.arange(count)
+
+
+#: Defaults of the optional variables: plate fins, untapered, in-line pins (pin lengths
+#: are stand-ins that plate-fin designs never use).
+OPTIONAL_DEFAULTS: dict[str, Variable] = {
+    "fin_type": Variable("fin_type", "choice", choices=("plate",)),
+    "fin_taper": Variable("fin_taper", "ratio", 1.0, 1.0),
+    "pin_diameter": Variable("pin_diameter", "length", 1e-3, 1e-3),
+    "pin_pitch_transverse": Variable("pin_pitch_transverse", "length", 3e-3, 3e-3),
+    "pin_pitch_longitudinal": Variable("pin_pitch_longitudinal", "length", 3e-3, 3e-3),
+    "pin_layout": Variable("pin_layout", "choice", choices=("inline",)),
+}
 
 
 @dataclass(frozen=True)
@@ -136,9 +164,12 @@ class Problem:
     resolved: dict = field(default_factory=dict, repr=False)  #: canonical SI form, for hashing
 
     def variable(self, name: str) -> Variable:
+        """The variable ``name``; optional variables a problem leaves out get their default."""
         for v in self.variables:
             if v.name == name:
                 return v
+        if name in OPTIONAL_DEFAULTS:
+            return OPTIONAL_DEFAULTS[name]
         raise KeyError(name)
 
     @property

@@ -11,7 +11,8 @@ import pandas as pd
 
 from optifin.errors import SearchError
 from optifin.model import to_frame
-from optifin.problem.spec import LIMITS, Problem
+from optifin.model.design import FIN_TYPES, PIN_LAYOUTS
+from optifin.problem.spec import LIMITS, LOWER_LIMITS, Problem
 from optifin.search.encoding import Encoding
 from optifin.search.ga import run_ga
 from optifin.search.objectives import constraint_names, score
@@ -196,13 +197,14 @@ def design_table(problem: Problem, designs) -> pd.DataFrame:
     best first.
     """
     s = score(problem, designs)  # one model evaluation serves the table and the margins
-    table = to_frame(designs, s.arrays, problem.library)
+    names = [source.name for source in problem.condition.sources]
+    table = to_frame(designs, s.arrays, problem.library, names)
     for name, column in zip(constraint_names(problem), s.G.T, strict=True):
         table[f"margin_{name}"] = 0.0 - column  # 0.0 - x: no negative zeros in the table
     violated = [
         np.where(column > 0, f"{name.replace('_', ' ')} not met", "")
         for name, column in zip(constraint_names(problem), s.G.T, strict=True)
-        if name in LIMITS or name.startswith("envelope_")
+        if name in LIMITS or name in LOWER_LIMITS or name.startswith("envelope_")
     ]
     reasons = table["infeasible_reason"].to_numpy(dtype=object)
     for texts in violated:
@@ -238,6 +240,16 @@ def archive_table(problem: Problem, encoding: Encoding, batches) -> pd.DataFrame
         "process": pd.Categorical.from_codes(designs.process, lib.process_keys),
         "finish": pd.Categorical.from_codes(designs.finish, lib.finishes),
     }
+    if designs.has_pins:
+        pin = designs.fin_type == 1
+        data["fin_type"] = pd.Categorical.from_codes(designs.fin_type, FIN_TYPES)
+        for name in ("pin_diameter", "pin_pitch_transverse", "pin_pitch_longitudinal"):
+            data[f"{name}_mm"] = np.where(pin, getattr(designs, name) * 1e3, np.nan)
+        data["pin_layout"] = pd.Categorical.from_codes(
+            np.where(pin, designs.pin_layout, -1), PIN_LAYOUTS
+        )
+    if designs.is_tapered:
+        data["fin_tip_thickness_mm"] = designs.fin_tip_thickness * 1e3
     for objective, col in zip(problem.objectives, F.T, strict=True):
         value = -col if objective.sense == "maximise" else col
         data[objective_column(objective.name)] = np.where(np.abs(col) >= 1e12, np.nan, value)

@@ -3,8 +3,10 @@
 Every gene is a number between bounds: the fin count as itself, a stepped length as the
 index of its step, a continuous length as itself, and material, process and finish together
 as one index into the list of combinations the library can actually make (so that the search
-never wastes evaluations on extruded copper or anodised copper). Integer genes are snapped by
-rounding only those columns.
+never wastes evaluations on extruded copper or anodised copper; the fin type, plate or pin,
+joins that combination, since only some processes make pins). The pin layout is a gene of
+its own when both layouts are offered. Integer genes are snapped by rounding only those
+columns.
 """
 
 from __future__ import annotations
@@ -15,11 +17,22 @@ from dataclasses import dataclass
 import numpy as np
 
 from optifin.errors import SearchError
-from optifin.model.design import Designs
+from optifin.model.design import FIN_TYPES, PIN_LAYOUTS, Designs
 from optifin.problem.spec import Problem, Variable
 
-NUMERIC = ("fin_count", "fin_thickness", "fin_height", "base_thickness", "width", "length")
-CHOICE = ("material", "process", "finish")
+NUMERIC = (
+    "fin_count",
+    "fin_thickness",
+    "fin_height",
+    "base_thickness",
+    "width",
+    "length",
+    "fin_taper",
+    "pin_diameter",
+    "pin_pitch_transverse",
+    "pin_pitch_longitudinal",
+)
+CHOICE = ("material", "process", "finish", "fin_type")
 
 
 @dataclass(frozen=True)
@@ -54,19 +67,27 @@ class Encoding:
                 genes.append(Gene(name, 0.0, float(len(v.grid()) - 1), True, v))
             else:
                 genes.append(Gene(name, float(v.low), float(v.high), False, v))
-        # the buildable (material, process, finish) combinations among the choices
+        # the buildable (material, process, finish, fin type) combinations among the choices
         allowed = lib.array("allowed")
         emissivity = lib.array("emissivity")
+        makes = {"plate": lib.array("makes_plates"), "pin": lib.array("makes_pins")}
         combos = []
-        for m, p, f in itertools.product(*(problem.variable(c).choices for c in CHOICE)):
+        for m, p, f, t in itertools.product(*(problem.variable(c).choices for c in CHOICE)):
             mc, pc, fc = lib.material_code(m), lib.process_code(p), lib.finish_code(f)
-            if allowed[pc, mc] and np.isfinite(emissivity[mc, fc]):
-                combos.append((mc, pc, fc))
+            if allowed[pc, mc] and np.isfinite(emissivity[mc, fc]) and makes[t][pc]:
+                combos.append((mc, pc, fc, FIN_TYPES.index(t)))
         if not combos:
-            raise SearchError("no material, process and finish among the choices can be made")
+            raise SearchError(
+                "no material, process, finish and fin type among the choices can be made"
+            )
         self.combos = np.array(combos, dtype=np.int64)
         if len(combos) > 1:
             genes.append(Gene("make", 0.0, float(len(combos) - 1), True))
+        self.layouts = np.array(
+            [PIN_LAYOUTS.index(v) for v in problem.variable("pin_layout").choices], dtype=np.int64
+        )
+        if len(self.layouts) > 1:
+            genes.append(Gene("pin_layout", 0.0, float(len(self.layouts) - 1), True))
         self.genes = tuple(genes)
         self.xl = np.array([g.low for g in genes])
         self.xu = np.array([g.high for g in genes])
@@ -104,10 +125,13 @@ class Encoding:
         for name, value in self.fixed.items():
             columns[name] = np.full(n, value)
         make = np.zeros(n, dtype=np.int64)
+        layout = np.zeros(n, dtype=np.int64)
         for i, gene in enumerate(self.genes):
             col = x[:, i]
             if gene.name == "make":
                 make = np.rint(col).astype(np.int64)
+            elif gene.name == "pin_layout":
+                layout = np.rint(col).astype(np.int64)
             elif gene.name == "fin_count":
                 columns["fin_count"] = np.rint(col)
             elif gene.integer:
@@ -116,6 +140,19 @@ class Encoding:
             else:
                 columns[gene.name] = col
         combo = self.combos[make]
+        optional = {}
+        fin_type = combo[:, 3].copy()
+        if np.any(fin_type == 1):
+            optional.update(
+                fin_type=fin_type,
+                pin_layout=self.layouts[layout],
+                pin_diameter=columns["pin_diameter"],
+                pin_pitch_transverse=columns["pin_pitch_transverse"],
+                pin_pitch_longitudinal=columns["pin_pitch_longitudinal"],
+            )
+        taper = columns["fin_taper"]
+        if np.any(taper != 1.0):
+            optional["fin_tip_thickness"] = columns["fin_thickness"] * taper
         return Designs(
             fin_count=columns["fin_count"].astype(np.int64),
             fin_thickness=columns["fin_thickness"],
@@ -126,6 +163,7 @@ class Encoding:
             material=combo[:, 0].copy(),
             process=combo[:, 1].copy(),
             finish=combo[:, 2].copy(),
+            **optional,
         )
 
     def grid_chunk(self, start: int, stop: int) -> np.ndarray:

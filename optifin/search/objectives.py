@@ -9,7 +9,7 @@ import numpy as np
 from optifin.model.design import Designs
 from optifin.model.geometry import BIT, NONEXISTENT, manufacturing_margins
 from optifin.model.sink import evaluate_arrays
-from optifin.problem.spec import LIMITS, Problem
+from optifin.problem.spec import LIMITS, LOWER_LIMITS, Problem
 
 #: A stand-in objective for designs that cannot exist; only ever compared with its peers.
 BAD = 1e12
@@ -28,6 +28,7 @@ class Scores:
 def constraint_names(problem: Problem) -> list[str]:
     """Names of the constraints, in the column order of G."""
     names = [name for name in LIMITS if name in problem.limits]
+    names += [name for name in LOWER_LIMITS if name in problem.limits]
     names += [f"envelope_{name}" for name, _, _ in _envelope_terms(problem)]
     names += [
         "min_fin_thickness",
@@ -63,6 +64,10 @@ def score(problem: Problem, designs: Designs) -> Scores:
         limit = problem.limits[name]
         scale = (limit - t_a) if kind == "temperature" else abs(limit)
         g.append((arrays[key] - limit) / scale)
+    for name, (key, _) in LOWER_LIMITS.items():
+        if name in problem.limits:
+            limit = problem.limits[name]
+            g.append((limit - arrays[key]) / abs(limit))
     for _, bound, size in _envelope_terms(problem):
         g.append((size(designs) - bound) / bound)
     margins = manufacturing_margins(designs, problem.library)
@@ -76,7 +81,7 @@ def score(problem: Problem, designs: Designs) -> Scores:
     ):
         g.append(-margins[name])
     # the sink must exist, fit its sources and reach a steady operating point
-    bad = gone | ((reasons & BIT["no_solution"]) != 0)
+    bad = gone | ((reasons & (BIT["no_solution"] | BIT["fan_stall"])) != 0)
     g.append(np.where(bad, 1.0, -1.0))
     G = np.column_stack(g)
     G = np.where(np.isfinite(G), G, 1e3)

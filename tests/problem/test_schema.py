@@ -17,7 +17,7 @@ from optifin.errors import ConfigError
 from optifin.model.condition import COOLING_MODES
 from optifin.problem import problem_from_mapping, problem_schema, problem_schema_json
 from optifin.problem.loader import bundled_library
-from optifin.problem.spec import LIMITS, OBJECTIVES
+from optifin.problem.spec import LIMITS, LOWER_LIMITS, OBJECTIVES
 
 from ._data import VALID_FILES, read
 
@@ -54,7 +54,7 @@ def test_schema_lists_the_choices_and_is_closed():
     assert finish["enum"] == list(lib.finishes)
     assert props["cooling"]["properties"]["mode"]["enum"] == list(COOLING_MODES)
     assert props["objectives"]["items"]["anyOf"][0]["enum"] == list(OBJECTIVES)
-    assert set(props["constraints"]["properties"]) == set(LIMITS)
+    assert set(props["constraints"]["properties"]) == set(LIMITS) | set(LOWER_LIMITS)
 
     def walk(node):
         if isinstance(node, dict):

@@ -59,7 +59,7 @@ def test_encoding_snaps_only_integer_genes(problem):
             assert snapped[0, i] == np.rint(snapped[0, i])
     # material x process combinations: only what the library can make (no extruded copper)
     lib = problem.library
-    made = {(lib.material_keys[m], lib.process_keys[p]) for m, p, _ in enc.combos}
+    made = {(lib.material_keys[m], lib.process_keys[p]) for m, p, _, _ in enc.combos}
     assert made == {("al_6063_t5", "extrusion"), ("al_6063_t5", "skived"), ("cu_c11000", "skived")}
 
 
