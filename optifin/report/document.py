@@ -93,14 +93,23 @@ LIMIT_WORDS = {
 
 #: Columns of the marked-designs table (those present are shown).
 DESIGN_COLUMNS = (
+    "fin_type",
     "fin_count",
     "fin_thickness_mm",
+    "fin_tip_thickness_mm",
+    "pin_diameter_mm",
+    "pin_pitch_transverse_mm",
+    "pin_pitch_longitudinal_mm",
+    "pin_layout",
+    "pin_count",
     "fin_height_mm",
     "base_thickness_mm",
     "width_mm",
     "length_mm",
     "fin_gap_mm",
     "material",
+    "base_material",
+    "insert_material",
     "process",
 )
 METRIC_COLUMNS = (
@@ -109,6 +118,8 @@ METRIC_COLUMNS = (
     "source_temperature_C",
     "heat_rate_W",
     "pressure_drop_Pa",
+    "volumetric_flow_m3_per_s",
+    "bypass_fraction",
     "mass_kg",
     "total_cost",
 )
@@ -324,6 +335,64 @@ def _source_sentence(source, index: int) -> str:
     return text + "."
 
 
+def _forced_sentence(cond) -> str:
+    """How the air reaches the sink: set flow, approach velocity, fan, or an open sink."""
+    if cond.fan is not None:
+        curve = cond.fan
+        text = (
+            "Forced convection through a shrouded (ducted) sink driven by a fan"
+            f"{' (' + curve.name + ')' if curve.name else ''}: free delivery "
+            f"{format_number(curve.free_delivery / CFM)} CFM, shut-off "
+            f"{format_number(curve.shutoff_pressure)} Pa; the flow of each design is the "
+            "operating point where the fan curve meets the system curve (the sink's "
+            "pressure drop"
+        )
+        extra = []
+        if cond.extra_loss_coefficient:
+            where = (
+                "the sink frontal area"
+                if cond.extra_loss_area is None
+                else f"{format_number(cond.extra_loss_area * 1e4)} cm²"
+            )
+            extra.append(
+                f"an extra loss K = {format_number(cond.extra_loss_coefficient)} on {where}"
+            )
+        if cond.extra_loss_pressure:
+            extra.append(
+                f"an extra {format_number(cond.extra_loss_pressure)} Pa at "
+                f"{format_number(cond.extra_loss_flow / CFM)} CFM, scaled with flow squared"
+            )
+        return text + (" plus " + " and ".join(extra) if extra else "") + ")."
+    if cond.volumetric_flow is not None:
+        q = cond.volumetric_flow
+        return (
+            f"Forced convection through a shrouded (ducted) sink: "
+            f"{format_number(q)} m³/s ({format_number(q / CFM)} CFM) passes "
+            "through the fin channels."
+        )
+    v = cond.approach_velocity
+    if cond.bypassed:
+        side, top = cond.side_clearance or 0.0, cond.top_clearance or 0.0
+        where = (
+            "an open stream"
+            if math.isinf(side) or math.isinf(top)
+            else f"a duct with {format_number(side * 1e3)} mm beside each side and "
+            f"{format_number(top * 1e3)} mm above the fin tips"
+        )
+        return (
+            f"Forced convection over an open (unshrouded) sink in {where}: approach velocity "
+            f"{format_number(v)} m/s ({format_number(v / LFM)} LFM); part of the air goes "
+            "around the fins, split by a two-branch Bernoulli and continuity balance "
+            "(after Simons & Schmidt 1997), and the fins are rated at their own velocity."
+        )
+    return (
+        f"Forced convection through a shrouded (ducted) sink: approach "
+        f"velocity {format_number(v)} m/s ({format_number(v / LFM)} LFM) over "
+        "the fin frontal area (width × fin height), all of it passing through "
+        "the fin channels."
+    )
+
+
 def _limit_sentence(key: str, limit: float, currency: str) -> str:
     words, kind = LIMIT_WORDS.get(key, (key.replace("_", " "), ""))
     if kind == "temperature":
@@ -363,21 +432,7 @@ def _problem_blocks(result) -> list[Block]:
     else:
         air.append("Radiation is neglected.")
     if cond.cooling == "forced":
-        if cond.volumetric_flow is not None:
-            q = cond.volumetric_flow
-            air.append(
-                f"Forced convection through a shrouded (ducted) sink: "
-                f"{format_number(q)} m³/s ({format_number(q / CFM)} CFM) passes "
-                "through the fin channels."
-            )
-        else:
-            v = cond.approach_velocity
-            air.append(
-                f"Forced convection through a shrouded (ducted) sink: approach "
-                f"velocity {format_number(v)} m/s ({format_number(v / LFM)} LFM) over "
-                "the fin frontal area (width × fin height), all of it passing through "
-                "the fin channels."
-            )
+        air.append(_forced_sentence(cond))
     else:
         air.append(
             "Natural convection: vertical fins on a vertical base, open at top and "
@@ -569,12 +624,32 @@ def _design_sentence(design, problem) -> str:
     for key in ("process", "finish"):
         if key in design.index and not pd.isna(design[key]):
             made += f", {key} `{design[key]}`"
-    return (
-        f"{n} fins {format_mm(design['fin_thickness_mm'])} mm thick and "
-        f"{format_mm(design['fin_height_mm'])} mm tall on a "
-        f"{format_mm(design['base_thickness_mm'])} mm base, "
+    for key in ("base_material", "insert_material"):
+        if key in design.index and not pd.isna(design[key]):
+            made += f", {key.replace('_', ' ')} `{design[key]}`"
+    size = (
+        f"on a {format_mm(design['base_thickness_mm'])} mm base, "
         f"{format_mm(design['width_mm'])} mm wide and "
-        f"{format_mm(design['length_mm'])} mm long along the flow (gap "
+        f"{format_mm(design['length_mm'])} mm long along the flow"
+    )
+    if str(design.get("fin_type", "plate")) == "pin":
+        return (
+            f"{round(float(design['pin_count']))} round pins "
+            f"{format_mm(design['pin_diameter_mm'])} mm in diameter and "
+            f"{format_mm(design['fin_height_mm'])} mm tall, {design['pin_layout']} at "
+            f"{format_mm(design['pin_pitch_transverse_mm'])} mm across and "
+            f"{format_mm(design['pin_pitch_longitudinal_mm'])} mm along the flow, "
+            f"{size}; {made}."
+        )
+    thickness = f"{format_mm(design['fin_thickness_mm'])} mm thick"
+    tip = design.get("fin_tip_thickness_mm", math.nan)
+    if pd.notna(tip) and tip != design["fin_thickness_mm"]:
+        thickness = (
+            f"tapered from {format_mm(design['fin_thickness_mm'])} mm at the root to "
+            f"{format_mm(tip)} mm at the tip"
+        )
+    return (
+        f"{n} fins {thickness} and {format_mm(design['fin_height_mm'])} mm tall {size} (gap "
         f"{format_mm(design.get('fin_gap_mm', math.nan))} mm); {made}."
     )
 

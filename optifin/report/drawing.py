@@ -1,8 +1,11 @@
-"""Dimensioned cross-section drawings of plate-fin sinks, as plain SVG text.
+"""Dimensioned cross-section drawings of heat sinks, as plain SVG text.
 
 The section is normal to the flow: one looks along the fins, the base at the bottom and the
 N fins standing on it, flush with both side edges (the model's geometry, gap
-b = (W - N t)/(N - 1)). Dimensions are in millimetres. No drawing library is needed.
+b = (W - N t)/(N - 1)); tapered fins are drawn as symmetric trapezoids. A pin-fin sink is
+drawn as a section through its first row of pins above its plan view. The outlines are
+those of :mod:`optifin.report.outline` (the same as the DXF of :mod:`optifin.report.cad`).
+Dimensions are in millimetres. No drawing library is needed.
 """
 
 from __future__ import annotations
@@ -13,11 +16,24 @@ from collections.abc import Mapping
 from pathlib import Path
 from xml.sax.saxutils import escape
 
+import numpy as np
 import pandas as pd
 
-from optifin.errors import ModelError
+from optifin.report.outline import (
+    Section,
+    pin_plan,
+    pin_row_section,
+    read_section,
+    section_outline,
+)
 
-__all__ = ["cross_section_svg", "format_mm", "write_marked_drawings"]
+__all__ = [
+    "cross_section_svg",
+    "format_mm",
+    "length_text",
+    "material_notes",
+    "write_marked_drawings",
+]
 
 WIDTH_PX = 600.0  #: width of the drawing
 SINK_MAX_W = 400.0  #: largest drawn sink width [px]
@@ -27,24 +43,13 @@ OFFSET = 30.0  #: from the part to a dimension line [px]
 ARROW = 8.0  #: arrowhead length [px]
 FONT = 12.0  #: dimension text size [px]
 CHAR = 0.6 * FONT  #: rough width of one character of dimension text [px]
+PLAN_MAX_H = 300.0  #: largest drawn plan length of a pin-fin sink [px]
 
 
 def format_mm(value: float) -> str:
     """A length in mm as drawn: at most two decimals, no trailing zeros (``0.9``, ``100``)."""
     text = f"{float(value):.2f}".rstrip("0").rstrip(".")
     return "0" if text in ("-0", "") else text
-
-
-def _number(design: Mapping, key: str) -> float:
-    try:
-        value = float(design[key])
-    except KeyError:
-        raise ModelError(f"the design has no {key!r} column") from None
-    except (TypeError, ValueError):
-        raise ModelError(f"{key} is not a number: {design[key]!r}") from None
-    if not (math.isfinite(value) and value > 0):
-        raise ModelError(f"{key} must be positive and finite, got {value}")
-    return value
 
 
 class _Svg:
@@ -117,47 +122,112 @@ class _Svg:
 
 
 def cross_section_svg(design: Mapping, title: str = "") -> str:
-    """A dimensioned cross-section of a plate-fin sink (view along the flow), as SVG text.
+    """A dimensioned cross-section of a heat sink (view along the flow), as SVG text.
 
     Parameters
     ----------
     design
         A result row (mapping or pandas Series) with ``fin_count``, ``fin_thickness_mm``,
         ``fin_height_mm``, ``base_thickness_mm``, ``width_mm`` and optionally
-        ``fin_gap_mm`` (computed from the others when missing), ``length_mm``,
-        ``material``, ``process`` and ``finish``.
+        ``fin_tip_thickness_mm`` (tapered fins), ``fin_gap_mm`` (computed from the others
+        when missing), ``length_mm``, ``material``, ``process``, ``finish`` and
+        ``base_material``; or the SI names of :class:`optifin.model.design.Designs`. A
+        pin-fin row (``fin_type`` ``"pin"``) needs ``pin_diameter_mm``,
+        ``pin_pitch_transverse_mm``, ``pin_pitch_longitudinal_mm``, ``pin_layout`` and
+        ``length_mm`` instead of the fin count and thickness.
     title
         Printed above the drawing.
 
     Returns
     -------
     str
-        A standalone SVG document about 600 px wide: the section (hatched) with dimension
-        lines for the overall width, the total height, the base thickness, the fin height,
-        one fin thickness and one gap, all in mm, and a note with the fin count, the cut
-        length along the flow and the material.
+        A standalone SVG document about 600 px wide: the section outline of
+        :func:`optifin.report.outline.section_outline` (hatched, tapered fins as
+        trapezoids) with dimension lines for the overall width, the total height, the base
+        thickness, the fin height, one fin thickness and one gap (tapered fins: the tip
+        thickness, and the root thickness and root gap), all in mm, and notes with the fin
+        count, the cut length along the flow and the material. A pin-fin design is drawn
+        as the section A-A through its first row of pins (pin diameter and clear gap)
+        above its plan view (circles on the W x L base, with L, S_T and S_L).
     """
-    count = _number(design, "fin_count")
-    if count != round(count) or count < 2:
-        raise ModelError(f"fin_count must be a whole number of at least 2, got {count}")
-    n = round(count)
-    t = _number(design, "fin_thickness_mm")
-    h = _number(design, "fin_height_mm")
-    tb = _number(design, "base_thickness_mm")
-    w = _number(design, "width_mm")
-    pitch_gap = (w - n * t) / (n - 1)
-    if not pitch_gap > 0:
-        raise ModelError(f"{n} fins of {format_mm(t)} mm do not fit across {format_mm(w)} mm")
-    gap_value = design.get("fin_gap_mm", pitch_gap) if hasattr(design, "get") else pitch_gap
-    try:
-        gap_value = float(gap_value)
-    except (TypeError, ValueError):
-        gap_value = pitch_gap
-    if not math.isfinite(gap_value):
-        gap_value = pitch_gap
-    total = tb + h
+    section = read_section(design)
+    if section.pins:
+        return _pin_svg(design, section, title)
+    return _plate_svg(design, section, title)
+
+
+def _polygon_points(vertices: np.ndarray, X, Y) -> str:
+    return " ".join(f"{X(x):.2f},{Y(y):.2f}" for x, y in vertices)
+
+
+def _plate_svg(design: Mapping, sec: Section, title: str) -> str:
+    n, t, h, tb, w = sec.n, sec.t, sec.height, sec.base, sec.width
+    gap_value = sec.gap
+    if not sec.tapered:  # the table's own gap when it has one (the same b)
+        gap_value = design.get("fin_gap_mm", sec.gap) if hasattr(design, "get") else sec.gap
+        try:
+            gap_value = float(gap_value)
+        except (TypeError, ValueError):
+            gap_value = sec.gap
+        if not math.isfinite(gap_value):
+            gap_value = sec.gap
+    total = sec.total_height
 
     s = min(SINK_MAX_W / w, SINK_MAX_H / total)  # px per mm
+    x0 = (WIDTH_PX - w * s) / 2
+    top = TOP + (OFFSET if sec.tapered else 0.0)  # room for a second row of dimensions
+    y_tip = top
+    y_base_top = top + h * s
+    y_bottom = top + total * s
+
+    def X(x_mm):
+        return x0 + x_mm * s
+
+    def Y(y_mm):
+        return y_bottom - y_mm * s
+
+    svg = _Svg()
+    points = _polygon_points(section_outline(design), X, Y)
+    svg.parts.append(f'<polygon points="{points}" class="part"/>')
+    # overall width, below
+    svg.hdim(X(0), X(w), y_bottom + OFFSET, format_mm(w), y_bottom)
+    # base thickness and fin height, chained on the left; total height on the right
+    svg.vdim(y_base_top, y_bottom, X(0) - OFFSET, format_mm(tb), X(0))
+    svg.vdim(y_tip, y_base_top, X(0) - OFFSET, format_mm(h), X(0))
+    svg.vdim(y_tip, y_bottom, X(w) + OFFSET, format_mm(total), X(w))
+    # one fin thickness (the first fin) and one gap (the last), above the fin tips
+    pitch = sec.pitch
+    last = (n - 2) * pitch + t  # right face of the last but one fin, at its root
+    y_top_dims = y_tip - OFFSET * 0.8
+    if not sec.tapered:
+        svg.hdim(X(0), X(t), y_top_dims, format_mm(t), y_tip, aside="left")
+        svg.hdim(X(last), X(w - t), y_top_dims, format_mm(gap_value), y_tip, aside="right")
+        notes = []
+    else:  # tip thickness at the tips; root thickness and root gap from the roots, above
+        inset = (t - sec.t_tip) / 2
+        svg.hdim(X(inset), X(t - inset), y_top_dims, format_mm(sec.t_tip), y_tip, aside="left")
+        y_root_dims = y_top_dims - OFFSET
+        svg.hdim(X(0), X(t), y_root_dims, format_mm(t), y_base_top, aside="left")
+        svg.hdim(X(last), X(w - t), y_root_dims, format_mm(sec.gap), y_base_top, aside="right")
+        notes = [
+            f"Fins taper symmetrically from {format_mm(t)} mm at the root to "
+            f"{format_mm(sec.t_tip)} mm at the tip; root gap {format_mm(sec.gap)} mm."
+        ]
+
+    length = length_text(design)
+    cut = f"cut length along the flow L = {length} mm" if length else "flow length not given"
+    notes.insert(0, f"{n} fins; {cut}")
+    notes += material_notes(design)
+    notes.append("Section across the fins, looking along the flow. Dimensions in mm.")
+    y_note = y_bottom + OFFSET + FONT + 30
+    return _document(svg, notes, y_note, title)
+
+
+def _pin_svg(design: Mapping, sec: Section, title: str) -> str:
+    plan = pin_plan(design)
+    d, h, tb, w, length = sec.t, sec.height, sec.base, sec.width, sec.length
+    total = sec.total_height
+    s = min(SINK_MAX_W / w, SINK_MAX_H / total, PLAN_MAX_H / length)  # px per mm
     x0 = (WIDTH_PX - w * s) / 2
     y_tip = TOP
     y_base_top = TOP + h * s
@@ -166,47 +236,117 @@ def cross_section_svg(design: Mapping, title: str = "") -> str:
     def X(x_mm):
         return x0 + x_mm * s
 
-    # the section: one outline polygon, from the bottom left, right along the bottom, then
-    # back along the tops of the fins and the gaps between them
-    pitch = t + pitch_gap
-    points = [(0.0, 0.0), (w, 0.0)]
-    for i in range(n - 1, -1, -1):
-        left = i * pitch
-        points += [(left + t, total), (left, total)]
-        if i:
-            points += [(left, tb), ((i - 1) * pitch + t, tb)]
-    outline = " ".join(f"{X(x):.2f},{y_bottom - y * s:.2f}" for x, y in points)
+    def Y(y_mm):
+        return y_bottom - y_mm * s
 
     svg = _Svg()
-    svg.parts.append(f'<polygon points="{outline}" class="part"/>')
-    # overall width, below
+    points = _polygon_points(pin_row_section(design, 0), X, Y)
+    svg.parts.append(f'<polygon points="{points}" class="part"/>')
     svg.hdim(X(0), X(w), y_bottom + OFFSET, format_mm(w), y_bottom)
-    # base thickness and fin height, chained on the left; total height on the right
     svg.vdim(y_base_top, y_bottom, X(0) - OFFSET, format_mm(tb), X(0))
     svg.vdim(y_tip, y_base_top, X(0) - OFFSET, format_mm(h), X(0))
     svg.vdim(y_tip, y_bottom, X(w) + OFFSET, format_mm(total), X(w))
-    # one fin thickness (the first fin) and one gap (the last), above the fin tips
+    row0 = plan.centres[plan.row == 0, 0]
     y_top_dims = y_tip - OFFSET * 0.8
-    svg.hdim(X(0), X(t), y_top_dims, format_mm(t), y_tip, aside="left")
-    last = (n - 2) * pitch + t
-    svg.hdim(X(last), X(last + pitch_gap), y_top_dims, format_mm(gap_value), y_tip, aside="right")
+    svg.hdim(X(row0[0] - d / 2), X(row0[0] + d / 2), y_top_dims, format_mm(d), y_tip, "left")
+    if row0.size >= 2:  # the clear gap S_T - D between the last two pins of the row
+        a, b = row0[-2] + d / 2, row0[-1] - d / 2
+        svg.hdim(X(a), X(b), y_top_dims, format_mm(sec.gap), y_tip, aside="right")
+    y_label = y_bottom + OFFSET + FONT + 24
+    svg.text(WIDTH_PX / 2, y_label, "Section A-A (through the first row of pins)", cls="note")
 
-    length = _optional_mm(design, "length_mm")
-    cut = f"cut length along the flow L = {length} mm" if length else "flow length not given"
-    notes = [f"{n} fins; {cut}"]
+    # plan view below, to the same scale: the leading edge (y = 0) at the top
+    y_plan = y_label + 34
+
+    def P(y_mm):
+        return y_plan + y_mm * s
+
+    svg.parts.append(
+        f'<rect x="{X(0):.2f}" y="{P(0):.2f}" width="{w * s:.2f}" height="{length * s:.2f}" '
+        'class="plan"/>'
+    )
+    r = d / 2 * s
+    for x, y in plan.centres:
+        svg.parts.append(f'<circle cx="{X(x):.2f}" cy="{P(y):.2f}" r="{r:.2f}" class="pin"/>')
+    # the section line A-A through the first row, and the row centre line of the second
+    y_a = P(plan.centres[0, 1])
+    svg.line(X(0) - 14, y_a, X(w) + 14, y_a, "cut")
+    svg.text(X(0) - 8, y_a + FONT + 2, "A", anchor="end", cls="note")
+    svg.text(X(w) + 8, y_a + FONT + 2, "A", anchor="start", cls="note")
+    svg.vdim(P(0), P(length), X(0) - OFFSET, format_mm(length), X(0))
+    if plan.rows >= 2:
+        y_b = P(plan.centres[plan.row == 1][0, 1])
+        svg.line(X(0), y_b, X(w), y_b, "centre")
+        svg.vdim(y_a, y_b, X(w) + OFFSET, format_mm(plan.pitch_longitudinal), X(w))
+    last_row = plan.centres[plan.row == plan.rows - 1]
+    if last_row.shape[0] >= 2:
+        y_last = P(last_row[0, 1])
+        svg.hdim(
+            X(last_row[0, 0]),
+            X(last_row[1, 0]),
+            P(length) + OFFSET,
+            format_mm(plan.pitch_transverse),
+            y_last,
+            aside="right",
+        )
+    # flow arrow, left of the length dimension
+    x_flow = X(0) - OFFSET - 48
+    y_flow = P(length / 2)
+    svg.line(x_flow, y_flow - 22, x_flow, y_flow + 22, "dim")
+    svg.arrow(x_flow, y_flow + 22, 0, 1)
+    svg.text(x_flow, y_flow - 28, "flow", cls="note")
+    svg.text(WIDTH_PX / 2, P(length) + OFFSET + FONT + 24, "Plan view", cls="note")
+
+    layout = "staggered" if plan.staggered else "in-line"
+    cut = f"L = {format_mm(length)} mm along the flow"
+    notes = [
+        f"{plan.count} pins of diameter {format_mm(d)} mm in {plan.rows} rows, {layout}; {cut}",
+        f"pitch S_T = {format_mm(plan.pitch_transverse)} mm across, "
+        f"S_L = {format_mm(plan.pitch_longitudinal)} mm along the flow"
+        + (
+            f"; odd rows shifted {format_mm(plan.pitch_transverse / 2)} mm"
+            if plan.staggered
+            else ""
+        ),
+        *material_notes(design),
+        "Section across the flow, plan view from above the pins. Dimensions in mm.",
+    ]
+    y_note = P(length) + OFFSET + FONT + 56
+    return _document(svg, notes, y_note, title)
+
+
+def material_notes(design: Mapping) -> list[str]:
+    """Note lines: the material, process and finish; the base material and insert if any."""
     material = _optional_text(design, "material")
     made = [f"material {material}"] if material else ["material not given"]
     for key in ("process", "finish"):
         value = _optional_text(design, key)
         if value:
             made.append(f"{key} {value}")
-    notes.append("; ".join(made))
-    notes.append("Section across the fins, looking along the flow. Dimensions in mm.")
-    y_note = y_bottom + OFFSET + FONT + 30
+    lines = ["; ".join(made)]
+    extra = []
+    base = _optional_text(design, "base_material")
+    if base and base != "-1" and base != material:
+        extra.append(f"base {base}")
+    insert = _optional_text(design, "insert_material")
+    if insert and insert != "-1":
+        size = [
+            _optional_mm(design, f"insert_{k}_mm") or _optional_si_mm(design, f"insert_{k}")
+            for k in ("width", "length", "thickness")
+        ]
+        extra.append(
+            f"spreader insert {insert} {' x '.join(v or '?' for v in size)} mm "
+            "(width x length x thickness), centred on the base, flush with its top"
+        )
+    if extra:
+        lines.append("; ".join(extra))
+    return lines
+
+
+def _document(svg: _Svg, notes: list[str], y_note: float, title: str) -> str:
     for k, note in enumerate(notes):
         svg.text(WIDTH_PX / 2, y_note + 17 * k, note, cls="note")
     height = y_note + 17 * (len(notes) - 1) + 14
-
     head = [
         '<?xml version="1.0" encoding="UTF-8"?>',
         f'<svg xmlns="http://www.w3.org/2000/svg" width="{WIDTH_PX:.0f}" '
@@ -218,6 +358,10 @@ def cross_section_svg(design: Mapping, title: str = "") -> str:
         'stroke="#7a8591" stroke-width="1"/></pattern>',
         "<style>"
         ".part{fill:url(#hatch);stroke:#1d2733;stroke-width:1.2}"
+        ".plan{fill:#eef1f4;stroke:#1d2733;stroke-width:1.2}"
+        ".pin{fill:#b9c2cc;stroke:#1d2733;stroke-width:0.8}"
+        ".cut{stroke:#1d2733;stroke-width:0.9;stroke-dasharray:12 3 2 3}"
+        ".centre{stroke:#1d4f91;stroke-width:0.5;stroke-dasharray:12 3 2 3}"
         ".dim{stroke:#1d4f91;stroke-width:0.9}"
         ".ext{stroke:#1d4f91;stroke-width:0.6}"
         ".arrow{fill:#1d4f91}"
@@ -249,7 +393,21 @@ def _optional_text(design: Mapping, key: str) -> str:
 def _optional_mm(design: Mapping, key: str) -> str:
     try:
         value = float(design[key])
-    except (KeyError, TypeError, ValueError):
+    except (KeyError, IndexError, TypeError, ValueError):
+        return ""
+    return format_mm(value) if math.isfinite(value) else ""
+
+
+def length_text(design: Mapping) -> str:
+    """The flow length L as drawn in mm (from ``length_mm`` or ``length`` [m]); "" if none."""
+    return _optional_mm(design, "length_mm") or _optional_si_mm(design, "length")
+
+
+def _optional_si_mm(design: Mapping, key: str) -> str:
+    """A length given in metres under its SI name, as drawn in mm ("" when absent)."""
+    try:
+        value = float(design[key]) * 1e3
+    except (KeyError, IndexError, TypeError, ValueError):
         return ""
     return format_mm(value) if math.isfinite(value) else ""
 
