@@ -1144,6 +1144,90 @@ SEARCH = Section(
 )
 
 
+CATALOG = Section(
+    fields={
+        "file": Text(
+            description="Catalog CSV (relative to the problem file); default the "
+            "bundled demo catalog (invented profiles)."
+        ),
+        "cut_lengths": Range(
+            value=_length(),
+            description="Cut lengths to rate: fixed, or {min, max, step}; default every 5 mm "
+            "from 20 mm to the envelope.",
+        ),
+        "orientations": ListOf(
+            item=Choice(options=("along", "across")),
+            min_items=1,
+            noun="orientation",
+            description="along: profile width across the envelope width; across: turned "
+            "90 degrees. Default both.",
+        ),
+        "in_search": Flag(
+            description="Offer the catalog parts (profile x cut length) to the search beside "
+            "free designs; default false (screening only)."
+        ),
+    },
+    description="Stock profiles of a catalog, rated at cut lengths.",
+)
+INSERT = Section(
+    fields={
+        "material": Choice(source="material", description="Insert material."),
+        "thickness": _length("Insert thickness, flush with the top of the base."),
+        "footprint": Pair(item=_length(), description="Insert size [across, along] the fins."),
+    },
+    required=("material", "thickness", "footprint"),
+    description="A spreader insert under the (one, centred) heat source.",
+)
+MATERIAL_OPTION = Section(
+    fields={
+        "name": Text(description="Label of the option in the study."),
+        "material": Choice(source="material", description="Fin material (and base's)."),
+        "base_material": Choice(
+            source="material", description="Base material, where it differs (bonded fins)."
+        ),
+        "process": Choices(source="process", description="Process key(s) for this option."),
+        "insert": INSERT,
+    },
+    required=("name", "material"),
+    description="One construction to compare.",
+)
+STUDY = Section(
+    fields={
+        "materials": ListOf(
+            item=MATERIAL_OPTION,
+            min_items=2,
+            noun="material option",
+            description="Constructions compared: the problem is run once per option.",
+        ),
+        "price_sweep": Section(
+            fields={
+                "material": Choice(source="material", description="Material whose price moves."),
+                "min": Quantity(
+                    kind="price_per_mass",
+                    example='"4 USD/kg"',
+                    sign="positive",
+                    money=True,
+                    description="Lowest price per kg of the sweep.",
+                ),
+                "max": Quantity(
+                    kind="price_per_mass",
+                    example='"30 USD/kg"',
+                    sign="positive",
+                    money=True,
+                    description="Highest price per kg of the sweep.",
+                ),
+                "steps": Integer(minimum=2, maximum=1000, description="Prices; default 41."),
+            },
+            required=("material", "min", "max"),
+            description="Sweep one material's price per kg to find where the cheapest "
+            "option changes.",
+        ),
+    },
+    required=("materials",),
+    description="A material trade-off study (optifin study).",
+)
+
+
 def _override(kind: str, key: str) -> Quantity:
     examples = {
         "thermal_conductivity": '"180 W/m/K"',
@@ -1230,6 +1314,8 @@ PROBLEM = Section(
         "production": PRODUCTION,
         "model": MODEL,
         "search": SEARCH,
+        "catalog": CATALOG,
+        "study": STUDY,
         "materials": MATERIALS,
         "processes": PROCESSES,
     },

@@ -51,8 +51,11 @@ from optifin.problem.spec import (
     PIN_VARIABLES,
     PLATE_VARIABLES,
     VARIABLE_KINDS,
+    CatalogChoice,
     Envelope,
+    MaterialOption,
     Objective,
+    PriceSweep,
     Problem,
     SearchSettings,
     Variable,
@@ -296,7 +299,7 @@ def _build(doc: Any, source: str, default_name: str, errors: list[str]) -> Probl
     library, overrides = _library(doc, ctx)
     parsed = PROBLEM.parse(doc, "", ctx, skip=("materials", "processes"))
     parsed.update(overrides)
-    resolver = _Resolver(doc, parsed, ctx, library)
+    resolver = _Resolver(doc, parsed, ctx, library, source)
     values = resolver.run()
     if ctx.errors:
         raise ConfigError(ctx.errors, source=source)
@@ -309,8 +312,11 @@ def _build(doc: Any, source: str, default_name: str, errors: list[str]) -> Probl
 class _Resolver:
     """The checks across fields; collects SI values for the dataclasses."""
 
-    def __init__(self, doc: Mapping, parsed: dict, ctx: Context, library: Library | None):
+    def __init__(
+        self, doc: Mapping, parsed: dict, ctx: Context, library: Library | None, source: str = ""
+    ):
         self.doc, self.parsed, self.ctx, self.library = doc, parsed, ctx, library
+        self.source = source
         self.out: dict[str, Any] = {}
         self.mode: str | None = None
         self.envelope: dict[str, Any] = {}
@@ -329,7 +335,149 @@ class _Resolver:
         self.objectives_and_limits()
         self.materials()
         self.search()
+        self.catalog()
+        self.study()
         return self.out
+
+    # catalog of stock profiles
+    def catalog(self) -> None:
+        section = self.parsed.get("catalog")
+        self.out["catalog"] = None
+        if not isinstance(section, dict) or self.library is None:
+            return
+        path = section.get("file")
+        if path is INVALID:
+            return
+        if path is not None:
+            base = (
+                Path(self.source).parent
+                if self.source and not self.source.startswith("<")
+                else Path(".")
+            )
+            path = str((base / path).resolve()) if not Path(path).is_absolute() else path
+        from optifin.catalog import load_catalog
+
+        try:
+            load_catalog(path, self.library)
+        except DataError as exc:
+            for line in str(exc).splitlines():
+                if line.strip():
+                    self.error("catalog.file", line.strip())
+            return
+        cuts = section.get("cut_lengths")
+        if cuts is INVALID:
+            return
+        if isinstance(cuts, Span) and not cuts.fixed and cuts.step is None:
+            self.error("catalog.cut_lengths", "give a step: catalog parts are cut to a grid")
+            return
+        if cuts is None:
+            grid: tuple[float, ...] = ()
+        elif cuts.fixed:
+            grid = (float(cuts.low),)
+        else:
+            count = math.floor((cuts.high - cuts.low) / cuts.step + 1e-9) + 1
+            grid = tuple(float(cuts.low + cuts.step * i) for i in range(count))
+        orientations = section.get("orientations") or ("along", "across")
+        if INVALID in orientations:
+            return
+        self.out["catalog"] = CatalogChoice(
+            path=path,
+            cut_lengths=grid,
+            orientations=tuple(dict.fromkeys(orientations)),
+            in_search=bool(section.get("in_search", False)),
+        )
+
+    # material trade-off study
+    def study(self) -> None:
+        section = self.parsed.get("study")
+        self.out["study"], self.out["price_sweep"] = (), None
+        if not isinstance(section, dict) or self.library is None:
+            return
+        lib = self.library
+        options = []
+        names: set[str] = set()
+        sources = self.out.get("sources") or []
+        for i, fields in enumerate(section.get("materials") or []):
+            path = join("study.materials", i)
+            if not isinstance(fields, dict) or INVALID in fields.values():
+                continue
+            name = fields["name"]
+            if name in names:
+                self.error(join(path, "name"), f"{name!r} names another option too")
+            names.add(name)
+            procs = tuple(fields.get("process") or self.spans.get("process") or ())
+            materials = [fields["material"]] + (
+                [fields["base_material"]] if "base_material" in fields else []
+            )
+            for m in materials:
+                able = [p for p in procs if m in lib.processes[p].materials]
+                if procs and not able:
+                    self.error(
+                        join(path, "process"),
+                        f"no process among {', '.join(procs)} can form {m} "
+                        f"(those that can: {', '.join(lib.materials[m].processes) or 'none'})",
+                    )
+            if "base_material" in fields and fields["base_material"] != fields["material"]:
+                joined = [p for p in procs if not lib.processes[p].monolithic]
+                if not joined:
+                    self.error(
+                        join(path, "base_material"),
+                        "a base of another material than the fins needs a process that "
+                        "joins fins to a base (e.g. bonded)",
+                    )
+            insert = fields.get("insert")
+            extra = {}
+            if isinstance(insert, dict) and INVALID not in insert.values():
+                one_centred = len(sources) == 1 and sources[0].get("position") is None
+                if not one_centred:
+                    self.error(
+                        join(path, "insert"),
+                        "an insert needs one heat source centred on the base (its model "
+                        "is for that case)",
+                    )
+                thickness, footprint = insert["thickness"], insert["footprint"]
+                base = self.spans.get("base_thickness")
+                if base is not None and thickness > base.low:
+                    self.error(
+                        join(path, "insert", "thickness"),
+                        f"{thickness.text} is thicker than the thinnest base {text_of(base.low)}",
+                    )
+                for size, largest in (
+                    (footprint[0], self.widest),
+                    (footprint[1], self.longest),
+                ):
+                    if largest is not None and size > largest * (1 + 1e-9):
+                        self.error(
+                            join(path, "insert", "footprint"),
+                            f"{size.text} is larger than the base ({_mm(largest)})",
+                        )
+                extra = dict(
+                    insert_material=insert["material"],
+                    insert_thickness=float(thickness),
+                    insert_width=float(footprint[0]),
+                    insert_length=float(footprint[1]),
+                )
+            options.append(
+                MaterialOption(
+                    name=name,
+                    material=fields["material"],
+                    processes=procs,
+                    base_material=fields.get("base_material"),
+                    **extra,
+                )
+            )
+        self.out["study"] = tuple(options)
+        sweep = section.get("price_sweep")
+        if isinstance(sweep, dict) and INVALID not in sweep.values() and "min" in sweep:
+            if not sweep["max"] > sweep["min"]:
+                self.error("study.price_sweep.max", "must be above min")
+                return
+            self.out["price_sweep"] = PriceSweep(
+                material=sweep["material"],
+                low=float(sweep["min"]),
+                high=float(sweep["max"]),
+                steps=int(sweep.get("steps", 41)),
+            )
 
     # ambient air
     def ambient(self) -> None:
@@ -884,6 +1032,9 @@ def _assemble(
         search=search,
         library=library,
         resolved=resolved,
+        catalog=values.get("catalog"),
+        study=values.get("study", ()),
+        price_sweep=values.get("price_sweep"),
     )
 
 

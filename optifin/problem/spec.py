@@ -148,6 +148,54 @@ class SearchSettings:
 
 
 @dataclass(frozen=True)
+class CatalogChoice:
+    """Stock profiles of a catalog: screened, and optionally offered to the search."""
+
+    path: str | None  #: catalog CSV; None for the bundled (invented) demo catalog
+    cut_lengths: tuple[float, ...]  #: cut lengths to rate [m] (empty: the default grid)
+    orientations: tuple[str, ...] = ("along", "across")
+    in_search: bool = False  #: profiles x cut lengths join the search as one gene
+
+
+@dataclass(frozen=True)
+class MaterialOption:
+    """One construction of a material trade-off study (SI; keys of the library)."""
+
+    name: str
+    material: str  #: the fins' material (and the base's, unless base_material is given)
+    processes: tuple[str, ...] = ()  #: processes to search (empty: the problem's)
+    base_material: str | None = None
+    insert_material: str | None = None
+    insert_thickness: float | None = None
+    insert_width: float | None = None
+    insert_length: float | None = None
+
+    def construction(self) -> dict:
+        """The fixed design columns of this option (base material, insert), as keys/SI."""
+        out: dict = {}
+        if self.base_material is not None:
+            out["base_material"] = self.base_material
+        if self.insert_material is not None:
+            out.update(
+                insert_material=self.insert_material,
+                insert_thickness=self.insert_thickness,
+                insert_width=self.insert_width,
+                insert_length=self.insert_length,
+            )
+        return out
+
+
+@dataclass(frozen=True)
+class PriceSweep:
+    """A sweep of one material's price per kg, for the study's flip point."""
+
+    material: str
+    low: float  #: [currency/kg]
+    high: float
+    steps: int = 41
+
+
+@dataclass(frozen=True)
 class Problem:
     """A validated optimisation problem."""
 
@@ -162,6 +210,11 @@ class Problem:
     search: SearchSettings
     library: Library
     resolved: dict = field(default_factory=dict, repr=False)  #: canonical SI form, for hashing
+    catalog: CatalogChoice | None = None
+    study: tuple[MaterialOption, ...] = ()
+    price_sweep: PriceSweep | None = None
+    #: design columns fixed for every design (base_material, insert_*): keys and SI values
+    construction: dict = field(default_factory=dict)
 
     def variable(self, name: str) -> Variable:
         """The variable ``name``; optional variables a problem leaves out get their default."""

@@ -153,6 +153,7 @@ class Encoding:
         taper = columns["fin_taper"]
         if np.any(taper != 1.0):
             optional["fin_tip_thickness"] = columns["fin_thickness"] * taper
+        optional.update(self._construction(n))
         return Designs(
             fin_count=columns["fin_count"].astype(np.int64),
             fin_thickness=columns["fin_thickness"],
@@ -165,6 +166,20 @@ class Encoding:
             finish=combo[:, 2].copy(),
             **optional,
         )
+
+    def _construction(self, n: int) -> dict:
+        """The problem's fixed construction columns (base material, insert) for n designs."""
+        fixed = self.problem.construction
+        if not fixed:
+            return {}
+        lib = self.problem.library
+        out = {}
+        for name, value in fixed.items():
+            if name.endswith("material"):
+                out[name] = np.full(n, lib.material_code(value), dtype=np.int64)
+            else:
+                out[name] = np.full(n, float(value))
+        return out
 
     def grid_chunk(self, start: int, stop: int) -> np.ndarray:
         """Gene vectors of grid designs ``start`` to ``stop`` (row-major over the genes)."""
