@@ -1,12 +1,12 @@
-"""optifin: multi-objective design optimisation of air-cooled plate-fin heat sinks.
+"""optifin: multi-objective design optimisation of air-cooled heat sinks (plate and pin fins).
 
-The public API (``load_problem``, ``evaluate_designs``, ``optimise``, ``write_run``) is
-imported on first use, so that ``import optifin`` stays cheap.
+The public API (``load_problem``, ``evaluate_designs``, ``optimise``, ``write_run``,
+``draw``) is imported on first use, so that ``import optifin`` stays cheap.
 """
 
 __version__ = "0.1.0"
 
-_API = ("design_from_values", "evaluate_designs", "load_problem", "optimise", "write_run")
+_API = ("design_from_values", "draw", "evaluate_designs", "load_problem", "optimise", "write_run")
 __all__ = ["__version__", *_API]
 
 

@@ -25,7 +25,14 @@ from optifin.problem.spec import VARIABLE_KINDS, Problem
 from optifin.search import SearchResult, design_table, optimise
 from optifin.units import to_si
 
-__all__ = ["design_from_values", "evaluate_designs", "load_problem", "optimise", "write_run"]
+__all__ = [
+    "design_from_values",
+    "draw",
+    "evaluate_designs",
+    "load_problem",
+    "optimise",
+    "write_run",
+]
 
 
 def design_from_values(problem: Problem, values: Mapping[str, Any]) -> Designs:
@@ -113,3 +120,31 @@ def write_run(result: SearchResult, out: str | Path | None = None, figures: bool
 
         extras = write_extras
     return write_results(result, folder, extras=extras)
+
+
+def draw(design: Mapping[str, Any], out: str | Path, formats=("svg", "dxf"), title: str = ""):
+    """Cross-section drawings of one design row: dimensioned SVG and/or DXF, in mm.
+
+    ``design`` is a result row (a ``front.csv`` row, an :func:`evaluate_designs` row, a
+    catalog part); ``out`` is a file name whose suffix is replaced per format. Returns the
+    paths written. The DXF has one closed outline of base and fins (for pins a row section
+    and the plan), whose area times the length times the density is the row's mass.
+    """
+    from optifin.report.cad import write_dxf
+    from optifin.report.drawing import cross_section_svg
+
+    out = Path(out)
+    paths = []
+    for fmt in formats:
+        path = out.with_suffix("." + fmt)
+        if fmt == "svg":
+            text = cross_section_svg(design, title=title)
+            tmp = path.with_name(f".{path.name}.tmp")
+            tmp.write_text(text, encoding="utf-8")
+            tmp.replace(path)
+            paths.append(path)
+        elif fmt == "dxf":
+            paths.append(write_dxf(design, path, title=title))
+        else:
+            raise ConfigError(f"drawing format {fmt!r}: expected svg or dxf")
+    return paths

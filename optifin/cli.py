@@ -87,6 +87,18 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--json", action="store_true", help="one JSON object on stdout")
 
+    p = command("draw", _draw, "section drawings (SVG and DXF, mm) of one design")
+    p.add_argument("source", help="a problem file (with --set or --profile) or a results folder")
+    p.add_argument("--row", type=int, help="results folder: the front.csv row to draw")
+    p.add_argument(
+        "--set", action="append", default=[], metavar="NAME=VALUE", help="a design variable"
+    )
+    p.add_argument("--profile", help="a catalog profile id (with --cut)")
+    p.add_argument("--cut", help='cut length of the catalog profile, e.g. "80 mm"')
+    p.add_argument("--catalog", help="catalog CSV (default: the problem's, else the demo)")
+    p.add_argument("--format", choices=["svg", "dxf", "both"], default="both")
+    p.add_argument("--out", help="file name without suffix (default: design_<name>)")
+
     p = command("materials", _materials, "the material table with sources")
     p.add_argument("--json", action="store_true")
     p = command("processes", _processes, "the process table with sources")
@@ -165,6 +177,69 @@ def _evaluate(args) -> int:
         shown = f"{value:.6g}" if isinstance(value, float) else str(value)
         print(f"{key:<{width}}  {shown}")
     return 0
+
+
+def _draw(args) -> int:
+    import pandas as pd
+
+    from optifin.api import draw, evaluate_designs, load_problem
+
+    source = Path(args.source)
+    formats = ("svg", "dxf") if args.format == "both" else (args.format,)
+    if source.is_dir():
+        front_csv = source / "front.csv"
+        if not front_csv.exists():
+            raise OptifinError(f"{source}: no front.csv (expected a results folder)")
+        if args.row is None:
+            raise OptifinError(f"{source}: give --row N, the front.csv row to draw")
+        front = pd.read_csv(front_csv)
+        if not 0 <= args.row < len(front):
+            raise OptifinError(f"--row {args.row}: front.csv has rows 0 to {len(front) - 1}")
+        row, name = front.iloc[args.row], f"row{args.row}"
+    else:
+        problem = load_problem(source)
+        if args.profile:
+            row, name = _catalog_row(problem, args), args.profile
+        else:
+            values = _values(args.set)
+            row, name = evaluate_designs(problem, values).iloc[0], problem.name
+    out = Path(args.out) if args.out else Path(f"design_{name}")
+    for path in draw(row, out, formats, title=name):
+        print(path)
+    return 0
+
+
+def _values(items) -> dict:
+    values = {}
+    for item in items:
+        if "=" not in item:
+            raise OptifinError(f"--set {item!r}: expected NAME=VALUE")
+        name, value = item.split("=", 1)
+        values[name.strip()] = value.strip().strip('"').strip("'")
+    return values
+
+
+def _catalog_row(problem, args):
+    import numpy as np
+
+    from optifin.catalog import load_catalog
+    from optifin.search import design_table
+    from optifin.units import to_si
+
+    if not args.cut:
+        raise OptifinError("--profile needs --cut, the cut length (e.g. --cut '80 mm')")
+    cut = to_si(args.cut, "length", "--cut")
+    path = args.catalog or (problem.catalog.path if problem.catalog else None)
+    catalog = load_catalog(path, problem.library)
+    if args.profile not in catalog.ids:
+        import difflib
+
+        near = difflib.get_close_matches(args.profile, catalog.ids, n=1)
+        hint = f"; did you mean {near[0]!r}?" if near else ""
+        raise OptifinError(f"--profile {args.profile!r}: not in {catalog.source}{hint}")
+    one = catalog.take([catalog.ids.index(args.profile)])
+    designs, _ = one.designs(np.array([cut]), problem.library)
+    return design_table(problem, designs).iloc[0]
 
 
 def _materials(args) -> int:

@@ -44,7 +44,12 @@ BIT = {name: 1 << i for i, (name, _) in enumerate(REASONS)}
 REASON_DTYPE = np.int32  #: bitmask type (fewer than 31 reasons)
 #: Bits after which the sink does not physically exist.
 NONEXISTENT = (
-    BIT["fin_count"] | BIT["dimensions"] | BIT["no_gap"] | BIT["source_fit"] | BIT["insert_fit"]
+    BIT["fin_count"]
+    | BIT["dimensions"]
+    | BIT["no_gap"]
+    | BIT["source_fit"]
+    | BIT["insert_fit"]
+    | BIT["taper"]
 )
 
 

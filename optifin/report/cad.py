@@ -328,3 +328,26 @@ def write_dxf(design: Mapping, path, *, title: str = "") -> Path:
         tmp.unlink(missing_ok=True)
         raise
     return path
+
+
+def write_marked_dxf(front, marks: Mapping[str, int], folder) -> list[Path]:
+    """One DXF per marked design of a front (``design_<label>.dxf``); returns the paths.
+
+    ``marks`` maps a label to a row position of ``front`` as
+    :func:`~optifin.report.marks.marked_designs` gives. Designs that cannot be drawn (NaN
+    geometry) are skipped.
+    """
+    from optifin.errors import ModelError
+    from optifin.report.drawing import drawing_name
+
+    folder = Path(folder)
+    paths = []
+    for label, row in marks.items():
+        path = folder / drawing_name(label).replace(".svg", ".dxf")
+        try:
+            paths.append(
+                write_dxf(front.iloc[int(row)], path, title=f"{label} (front row {int(row)})")
+            )
+        except ModelError:
+            continue
+    return paths

@@ -19,6 +19,7 @@ import pandas as pd
 from optifin.errors import ModelError
 from optifin.model import COLUMNS
 from optifin.physics import registry
+from optifin.report.cad import write_marked_dxf
 from optifin.report.drawing import drawing_name, format_mm, write_marked_drawings
 from optifin.report.marks import binding_constraint, marked_designs
 from optifin.report.plots import column_label, plot_convergence, plot_front_matrix, plot_parallel
@@ -612,6 +613,11 @@ def _marked_blocks(result, marks: Mapping[str, int], folder: Path) -> list[Block
         for label in labels:
             if (folder / drawing_name(label)).exists():
                 blocks.append(("img", drawing_name(label), f"Cross-section, `{label}`."))
+            dxf = drawing_name(label).replace(".svg", ".dxf")
+            if (folder / dxf).exists():
+                blocks.append(
+                    ("p", f"The same section as a DXF drawing in mm, for a vendor: `{dxf}`.")
+                )
                 break
     return blocks
 
@@ -824,5 +830,6 @@ def write_extras(result, folder) -> list[Path]:
         plot_convergence(result.history, folder / "convergence.png"),
     ]
     paths += write_marked_drawings(front, marks, folder)
+    paths += write_marked_dxf(front, marks, folder)
     paths += write_report(result, folder, marks)
     return paths
