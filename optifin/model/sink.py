@@ -414,6 +414,11 @@ def evaluate_arrays(designs: Designs, condition: Condition, library: Library) ->
                 "pin fins in natural convection: no published pin-array correlation is "
                 "implemented; use plate fins or forced cooling"
             )
+        if condition.radiation_on:
+            raise ModelError(
+                "radiation from pin-fin arrays is not modelled (the view factors are for "
+                "plate-fin channels); turn radiation off for pin fins"
+            )
         pin = designs.fin_type == 1
         if not pin.all():  # plates and pins: each through its own model, then joined
             parts = [np.flatnonzero(~pin), np.flatnonzero(pin)]

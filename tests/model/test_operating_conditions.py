@@ -320,3 +320,9 @@ def test_invariant_hottest_source_sets_the_limits():
     row = evaluate(WIDE, cond).iloc[0]
     hottest = max(row["low_temperature_C"], row["high_temperature_C"])
     assert row["source_temperature_C"] == pytest.approx(hottest, rel=1e-12)
+
+
+def test_invariant_pins_with_radiation_are_refused():
+    """Invariant: the radiation model is for plate channels; pins with radiation refuse."""
+    with pytest.raises(ModelError, match="radiation from pin-fin arrays"):
+        evaluate(PINS, _cond(approach_velocity=3.0, radiation=True))
