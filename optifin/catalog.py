@@ -79,6 +79,29 @@ the model's ``process_cost``. Both are reported next to the model's ``material_c
 ``total_cost``; wherever the problem's objectives or limits use ``material_cost`` or
 ``total_cost`` (``max_material_cost``, ``max_cost``), screening uses the catalog figures
 instead.
+
+A part is rated as process ``catalog_cut`` (optifin/data/processes.yaml): a stock profile
+cut to length, with no die set-up and only loose sanity limits (the profile exists and its
+die met the press's limits when it was made); the envelope and the problem's limits apply
+in full.
+
+Catalog parts in the search
+---------------------------
+With ``in_search`` in the problem's catalog section, :func:`search_parts` lists the
+(profile, cut length) pairs of orientation ``along`` that fit the envelope and the search
+offers them beside free designs through one integer gene (see
+:mod:`optifin.search.encoding`). In the search's tables (``design_table``,
+``archive_table``) a catalog part's ``material_cost`` is its catalog price and its
+``total_cost`` that plus ``process_cost``, computed where the table is built
+(:meth:`SearchParts.costs`); the column ``catalog_part`` names its profile (``""`` for a
+free design). Screening keeps the model's ``material_cost`` and ``total_cost`` beside
+``catalog_price`` and ``catalog_total_cost``; the figures a front is taken on are the same.
+
+What a custom die saves
+-----------------------
+:func:`custom_die_saving` compares, per objective, the best catalog part with the best
+free design (whose die or tooling set-up is shared over the production quantity inside its
+``process_cost``) and says whether the saving pays for that set-up.
 """
 
 from __future__ import annotations
@@ -111,12 +134,17 @@ __all__ = [
     "Catalog",
     "CatalogError",
     "ScreenResult",
+    "SearchParts",
     "catalog_price",
+    "catalog_scores",
+    "custom_die_saving",
     "default_cut_lengths",
     "load_catalog",
     "parse_catalog",
     "rotate_condition",
     "screen_catalog",
+    "screen_problem",
+    "search_parts",
 ]
 
 DEMO_CATALOG = "profiles_demo.csv"  #: the bundled catalog in optifin/data (invented)
@@ -199,7 +227,7 @@ class Catalog:
         )
 
     def designs(
-        self, cut_lengths, library: Library | None = None, process: str = "extrusion"
+        self, cut_lengths, library: Library | None = None, process: str = "catalog_cut"
     ) -> tuple[Designs, pd.DataFrame]:
         """The designs of every profile cut to every length, profile by profile.
 
@@ -210,7 +238,8 @@ class Catalog:
         library
             Materials and processes; the bundled library by default.
         process
-            Process key of every design.
+            Process key of every design; default ``catalog_cut``: a stock profile cut to
+            length, no die set-up, loose sanity limits only (the profile exists already).
 
         Returns
         -------
@@ -274,6 +303,369 @@ def catalog_price(index: pd.DataFrame, mass: np.ndarray) -> np.ndarray:
     per_m = index["price_per_m"].to_numpy(dtype=float)
     cut = index["cut_length"].to_numpy(dtype=float)
     return np.where(np.isnan(per_kg), per_m * cut, per_kg * np.asarray(mass, dtype=float))
+
+
+def catalog_scores(problem: Problem, s, material_cost, total_cost):
+    """Objectives, constraints and feasibility of scored designs at other cost figures.
+
+    ``s`` is a :func:`optifin.search.objectives.score` of the designs; ``material_cost``
+    and ``total_cost`` [currency] replace the model's figures wherever the problem's
+    objectives (``material_cost``, ``total_cost``) and limits (``max_material_cost``,
+    ``max_cost``) use them, with the same normalisation as ``score``. Rows whose figures
+    equal the model's get the model's values bit for bit. Returns ``(F, G, feasible)``.
+    """
+    from optifin.problem.spec import LIMITS
+    from optifin.search.objectives import BAD, constraint_names
+
+    cost = {"material_cost": material_cost, "total_cost": total_cost}
+    F = np.array(s.F, dtype=float, copy=True)
+    for j, objective in enumerate(problem.objectives):
+        if objective.key in cost:
+            value = cost[objective.key]
+            value = -value if objective.sense == "maximise" else value
+            F[:, j] = np.where(np.isfinite(value), value, BAD)
+    G = np.array(s.G, dtype=float, copy=True)
+    names = constraint_names(problem)
+    for name, (key, _) in LIMITS.items():
+        if name in problem.limits and key in cost and name in names:
+            limit = problem.limits[name]
+            with np.errstate(invalid="ignore"):
+                column = (cost[key] - limit) / abs(limit)
+            G[:, names.index(name)] = np.where(np.isfinite(column), column, 1e3)
+    feasible = np.all(G <= 0, axis=1) & (s.arrays["reasons"] == 0)
+    return F, G, feasible
+
+
+# -- catalog parts inside the search -----------------------------------------------------------
+@dataclass(frozen=True, eq=False)
+class SearchParts:
+    """The catalog parts a search offers beside free designs: part codes 1..K.
+
+    Part ``k`` (1-based; 0 is a free design) is row ``k - 1`` of :attr:`designs` and
+    :attr:`index`: one (profile, cut length) pair in orientation ``along`` that fits the
+    problem's envelope, as built by :meth:`Catalog.designs` (process ``catalog_cut``,
+    finish bare, material the profile's alloy), profile by profile, cuts ascending.
+    """
+
+    catalog: Catalog
+    cut_lengths: np.ndarray  #: [m] the grid the pairs were taken from
+    designs: Designs  #: K designs
+    index: pd.DataFrame  #: K rows: profile, id, line, cut_length [m], price_per_kg/_m
+
+    def __len__(self) -> int:
+        return len(self.index)
+
+    @property
+    def ids(self) -> np.ndarray:
+        return self.index["id"].to_numpy(dtype=object)
+
+    def part_ids(self, part) -> np.ndarray:
+        """Profile id of each part code, ``""`` for free designs (code 0)."""
+        part = np.asarray(part, dtype=np.int64)
+        if not len(self):
+            return np.full(part.shape, "", dtype=object)
+        ids = np.take(self.ids, np.maximum(part - 1, 0))
+        return np.where(part > 0, ids, "").astype(object)
+
+    def price(self, part, mass) -> np.ndarray:
+        """Catalog price [currency] of each part code at its mass [kg]; NaN for code 0.
+
+        Price per kg times the mass, or price per metre times the cut length (as
+        :func:`catalog_price`).
+        """
+        part = np.asarray(part, dtype=np.int64)
+        k = np.maximum(part - 1, 0)
+        per_kg = np.take(self.index["price_per_kg"].to_numpy(dtype=float), k)
+        per_m = np.take(self.index["price_per_m"].to_numpy(dtype=float), k)
+        cut = np.take(self.index["cut_length"].to_numpy(dtype=float), k)
+        mass = np.asarray(mass, dtype=float)
+        price = np.where(np.isnan(per_kg), per_m * cut, per_kg * mass)
+        return np.where(part > 0, price, np.nan)
+
+    def costs(self, part, arrays) -> tuple[np.ndarray, np.ndarray]:
+        """Material and total cost of designs: the catalog price for catalog parts.
+
+        ``arrays`` are the model arrays of the designs. Free designs (code 0) keep the
+        model's ``material_cost`` and ``total_cost``; a catalog part's material cost is its
+        catalog price and its total cost that plus the model's ``process_cost``.
+        """
+        part = np.asarray(part, dtype=np.int64)
+        price = self.price(part, arrays["mass"])
+        is_part = part > 0
+        material = np.where(is_part, price, arrays["material_cost"])
+        total = np.where(is_part, price + arrays["process_cost"], arrays["total_cost"])
+        return material, total
+
+    def match(self, designs: Designs) -> np.ndarray:
+        """Part code of each design (0 where a design is no catalog part).
+
+        A design is catalog part ``k`` when its process is ``catalog_cut`` and its fin
+        count, material, width, base thickness, root and tip thickness, fin height and
+        length equal those of part ``k`` (lengths to 1 nm). Where two parts share all of
+        these, the first is named. Used when designs come without their part codes.
+        """
+        lib_codes = self.designs.process
+        code = int(lib_codes[0]) if len(lib_codes) else -1
+
+        def keys(d: Designs) -> pd.DataFrame:
+            nm = {
+                name: np.rint(getattr(d, name) * 1e9).astype(np.int64)
+                for name in (
+                    "width",
+                    "base_thickness",
+                    "fin_thickness",
+                    "fin_tip_thickness",
+                    "fin_height",
+                    "length",
+                )
+            }
+            return pd.DataFrame(
+                {
+                    "fin_count": np.asarray(d.fin_count, dtype=np.int64),
+                    "material": np.asarray(d.material, dtype=np.int64),
+                    "process": np.asarray(d.process, dtype=np.int64),
+                    **nm,
+                }
+            )
+
+        ours = keys(self.designs)
+        ours["part"] = np.arange(1, len(ours) + 1, dtype=np.int64)
+        ours = ours.drop_duplicates(subset=[c for c in ours.columns if c != "part"])
+        theirs = keys(designs)
+        theirs["process"] = np.where(theirs["process"] == code, code, -2)
+        merged = theirs.merge(ours, how="left", on=[c for c in theirs.columns])
+        return merged["part"].fillna(0).to_numpy(dtype=np.int64)
+
+
+def search_parts(problem: Problem, catalog: Catalog | None = None) -> SearchParts | None:
+    """The catalog parts of a problem's search, or None when the search offers none.
+
+    None unless ``problem.catalog`` is set with ``in_search``. The catalog is read from
+    ``problem.catalog.path`` (the bundled demo for None) unless given. Cut lengths are
+    ``problem.catalog.cut_lengths`` or :func:`default_cut_lengths`; the pairs kept are those
+    of orientation ``along`` that fit the envelope (width, height = base + fins, cut
+    length; an open bound falls back to the variables' upper ends, as in screening).
+    Returns a :class:`SearchParts` with no part (``len() == 0``) when nothing fits.
+    """
+    choice = problem.catalog
+    if choice is None or not choice.in_search:
+        return None
+    if catalog is None:
+        catalog = load_catalog(choice.path, problem.library)
+    cuts = (
+        np.unique(np.asarray(choice.cut_lengths, dtype=float))
+        if choice.cut_lengths
+        else default_cut_lengths(problem)
+    )
+    env = problem.envelope
+    width_bound = _bound(problem, env.max_width, "width")
+    length_bound = _bound(problem, env.max_length, "length")
+    height_bound = _bound(problem, env.max_height, "base_thickness", "fin_height")
+    p = catalog.profiles
+    height = (p["base_thickness"] + p["fin_height"]).to_numpy(dtype=float)
+    fits = p["width"].to_numpy(dtype=float) <= width_bound * (1 + _TOLERANCE)
+    fits &= height <= height_bound * (1 + _TOLERANCE)
+    grid = cuts[cuts <= length_bound * (1 + _TOLERANCE)]
+    designs, index = catalog.take(np.flatnonzero(fits)).designs(grid, problem.library)
+    return SearchParts(catalog=catalog, cut_lengths=cuts, designs=designs, index=index)
+
+
+# -- what a custom die saves -------------------------------------------------------------------
+#: Objectives priced in the library's currency.
+COST_OBJECTIVES = ("material_cost", "total_cost")
+
+
+def custom_die_saving(search, screen: ScreenResult | None = None, objective=None) -> pd.DataFrame:
+    """What the best free (custom-die) design saves over the best catalog part, per objective.
+
+    Parameters
+    ----------
+    search
+        A :class:`optifin.search.SearchResult`. Its free designs are the feasible rows of
+        its archive (its front when the archive is empty) whose ``catalog_part`` is ``""``
+        (every row when the problem offered no catalog to the search).
+    screen
+        A :class:`ScreenResult` of the same problem: its feasible parts, in every
+        orientation it rated, are the catalog candidates. Without it the candidates are the
+        search's own feasible catalog parts (``catalog_part`` not ``""``).
+    objective
+        One objective name (``"thermal_resistance"``) or column; default every objective
+        of the problem.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per objective: ``objective``, ``column``, ``sense``, ``unit``; the best
+        catalog part (``catalog_part``, ``catalog_orientation``, ``catalog_cut_length_mm``,
+        ``catalog_value``) and the best free design (``free_design``, a short description,
+        ``free_process``, ``free_value``) in that objective;
+
+        ``saving``
+            catalog_value - free_value for a minimised objective, free_value -
+            catalog_value for a maximised one, in the objective's unit: positive when the
+            free design is better, negative when the catalog part is. NaN when either side
+            has no feasible design.
+        ``relative_saving``
+            saving / abs(catalog_value).
+
+        For the cost objectives (``material_cost``, ``total_cost``) also ``quantity`` (the
+        problem's production quantity), ``setup_cost`` (the one-off set-up of the free
+        design's process: die, fixture), ``setup_per_part`` = setup_cost / quantity,
+        ``gross_saving_per_part``, ``pays_setup`` and ``break_even_quantity``:
+
+        * ``total_cost``: the free design's total cost already holds setup_cost /
+          quantity (inside its ``process_cost``); a catalog part has no set-up. The gross
+          saving is the saving before that share, saving + setup_per_part.
+        * ``material_cost``: no set-up is in either material cost; the gross saving is the
+          saving itself.
+
+        ``pays_setup`` is gross_saving_per_part x quantity >= setup_cost (for
+        ``total_cost``: saving >= 0), and ``break_even_quantity`` = setup_cost /
+        gross_saving_per_part, the smallest batch at which the die pays for itself (inf
+        when the free design saves nothing per part before its set-up). For other
+        objectives these columns are NaN.
+
+    Notes
+    -----
+    Costs are the indicative figures of the library (optifin/data/processes.yaml) and the
+    catalog's prices. A catalog part's material cost is its catalog price (see the module
+    docstring). The best design in one objective is on the Pareto front of its kind, but
+    the two best designs compared here need not be the same in every objective row.
+    """
+    from optifin.report.plots import column_label
+
+    problem = search.problem
+    lib = problem.library
+    columns = [(c, sense) for c, sense in search.objective_columns]
+    names = [o.name for o in problem.objectives]
+    if objective is not None:
+        picks = [i for i, (c, _) in enumerate(columns) if objective in (c, names[i])]
+        if not picks:
+            raise SearchError(f"custom_die_saving: {objective!r} is not an objective")
+    else:
+        picks = list(range(len(columns)))
+
+    free = search.archive if len(search.archive) else search.front
+    free = free[free["feasible"].to_numpy(dtype=bool)] if len(free) else free
+    if "catalog_part" in free.columns:
+        free_rows = free[free["catalog_part"].astype(str) == ""]
+        own_parts = free[free["catalog_part"].astype(str) != ""]
+    else:
+        free_rows, own_parts = free, free.iloc[:0]
+    if screen is not None:
+        rated = screen.table[screen.table["feasible"].to_numpy(dtype=bool)]
+        parts = rated.rename(columns={"profile_id": "catalog_part"})
+        part_columns = [c for c, _ in screen.objective_columns]
+        orientation = parts["orientation"] if "orientation" in parts else None
+    else:
+        parts = own_parts
+        part_columns = [c for c, _ in columns]
+        orientation = None
+    quantity = int(problem.condition.quantity)
+    setup = lib.array("cost_setup")
+    currency = getattr(lib, "currency", "")
+
+    out = []
+    for i in picks:
+        column, sense = columns[i]
+        sign = -1.0 if sense == "maximise" else 1.0
+        row: dict = {
+            "objective": names[i],
+            "column": column,
+            "sense": sense,
+            "unit": _unit(column_label(column, currency)),
+        }
+        best_part = _best(parts, part_columns[i], sign)
+        best_free = _best(free_rows, column, sign)
+        if best_part is not None:
+            cut = best_part.get("cut_length_mm", best_part.get("length_mm", np.nan))
+            row.update(
+                catalog_part=str(best_part["catalog_part"]),
+                catalog_orientation=(
+                    str(orientation.loc[best_part.name]) if orientation is not None else "along"
+                ),
+                catalog_cut_length_mm=float(cut),
+                catalog_value=float(best_part[part_columns[i]]),
+            )
+        else:
+            row.update(
+                catalog_part="",
+                catalog_orientation="",
+                catalog_cut_length_mm=np.nan,
+                catalog_value=np.nan,
+            )
+        if best_free is not None:
+            row.update(
+                free_design=_free_words(best_free),
+                free_process=str(best_free.get("process", "")),
+                free_value=float(best_free[column]),
+            )
+        else:
+            row.update(free_design="", free_process="", free_value=np.nan)
+        saving = sign * (row["catalog_value"] - row["free_value"])
+        row["saving"] = saving
+        with np.errstate(divide="ignore", invalid="ignore"):
+            row["relative_saving"] = saving / abs(row["catalog_value"])
+        key = problem.objectives[i].key
+        if key in COST_OBJECTIVES and best_free is not None and row["free_process"]:
+            s_cost = float(setup[lib.process_code(row["free_process"])])
+            per_part = s_cost / quantity
+            gross = saving + per_part if key == "total_cost" else saving
+            row.update(
+                quantity=quantity,
+                setup_cost=s_cost,
+                setup_per_part=per_part,
+                gross_saving_per_part=gross,
+                pays_setup=bool(gross * quantity >= s_cost) if np.isfinite(gross) else False,
+                break_even_quantity=(
+                    s_cost / gross if gross > 0 else (0.0 if s_cost == 0 and gross == 0 else np.inf)
+                ),
+            )
+        else:
+            row.update(
+                quantity=np.nan,
+                setup_cost=np.nan,
+                setup_per_part=np.nan,
+                gross_saving_per_part=np.nan,
+                pays_setup=np.nan,
+                break_even_quantity=np.nan,
+            )
+        out.append(row)
+    return pd.DataFrame(out)
+
+
+def _unit(label: str) -> str:
+    match = re.search(r"\[([^\]]*)\]$", label)
+    return match.group(1) if match else ""
+
+
+def _best(frame: pd.DataFrame, column: str, sign: float):
+    """The row of ``frame`` best in ``column`` (minimised after ``sign``), or None."""
+    if not len(frame) or column not in frame.columns:
+        return None
+    values = sign * frame[column].to_numpy(dtype=float)
+    if not np.isfinite(values).any():
+        return None
+    return frame.iloc[int(np.nanargmin(np.where(np.isfinite(values), values, np.nan)))]
+
+
+def _free_words(row) -> str:
+    """A short description of a design row (plate or pin fins)."""
+
+    def mm(name):
+        value = row.get(name, np.nan)
+        return f"{float(value):.6g}" if pd.notna(value) else "?"
+
+    size = f"{mm('width_mm')} x {mm('length_mm')} mm on a {mm('base_thickness_mm')} mm base"
+    made = ", ".join(str(row[k]) for k in ("material", "process") if k in row.index)
+    if str(row.get("fin_type", "plate")) == "pin":
+        fins = f"pins {mm('pin_diameter_mm')} mm, {mm('fin_height_mm')} mm tall"
+    else:
+        fins = (
+            f"{round(float(row['fin_count']))} fins {mm('fin_thickness_mm')} mm, "
+            f"{mm('fin_height_mm')} mm tall"
+        )
+    return f"{fins}, {size}; {made}"
 
 
 # -- reading ---------------------------------------------------------------------------------
@@ -606,7 +998,8 @@ def screen_catalog(
     problem
         The problem (its condition, objectives, limits, envelope and library).
     catalog
-        The profiles (:func:`load_catalog`); every part is an extrusion, finish bare.
+        The profiles (:func:`load_catalog`); every part is a stock profile cut to length
+        (process ``catalog_cut``), finish bare.
     cut_lengths
         Cut lengths [m]; default :func:`default_cut_lengths` (every 5 mm from 20 mm).
     orientations
@@ -702,6 +1095,22 @@ def screen_catalog(
     )
 
 
+def screen_problem(problem: Problem, catalog: Catalog | None = None) -> ScreenResult:
+    """:func:`screen_catalog` with the problem's own catalog settings.
+
+    The catalog of ``problem.catalog`` (its file, or the bundled demo for none; ``catalog``
+    stands for it when given), its ``cut_lengths`` (the default grid when empty) and its
+    ``orientations``. A problem without a catalog section screens the demo catalog at the
+    default grid in both orientations.
+    """
+    choice = problem.catalog
+    if catalog is None:
+        catalog = load_catalog(choice.path if choice else None, problem.library)
+    cuts = choice.cut_lengths if choice and choice.cut_lengths else None
+    orientations = choice.orientations if choice else ORIENTATIONS
+    return screen_catalog(problem, catalog, cut_lengths=cuts, orientations=orientations)
+
+
 def _objective_column(name: str) -> str:
     from optifin.search import objective_column
 
@@ -728,28 +1137,9 @@ def _fit_reasons(width, height, fits_w, fits_h, axis, across_bound, height_bound
 
 def _catalog_costs(problem: Problem, s, index: pd.DataFrame):
     """Objectives, constraints and feasibility with the catalog price as material cost."""
-    from optifin.problem.spec import LIMITS
-    from optifin.search.objectives import BAD, constraint_names
-
-    arrays = s.arrays
-    price = catalog_price(index, arrays["mass"])
-    total = price + arrays["process_cost"]
-    cost = {"material_cost": price, "total_cost": total}
-    F = np.array(s.F, dtype=float, copy=True)
-    for j, objective in enumerate(problem.objectives):
-        if objective.key in cost:
-            value = cost[objective.key]
-            value = -value if objective.sense == "maximise" else value
-            F[:, j] = np.where(np.isfinite(value), value, BAD)
-    G = np.array(s.G, dtype=float, copy=True)
-    names = constraint_names(problem)
-    for name, (key, _) in LIMITS.items():
-        if name in problem.limits and key in cost and name in names:
-            limit = problem.limits[name]
-            with np.errstate(invalid="ignore"):
-                column = (cost[key] - limit) / abs(limit)
-            G[:, names.index(name)] = np.where(np.isfinite(column), column, 1e3)
-    feasible = np.all(G <= 0, axis=1) & (arrays["reasons"] == 0)
+    price = catalog_price(index, s.arrays["mass"])
+    total = price + s.arrays["process_cost"]
+    F, G, feasible = catalog_scores(problem, s, price, total)
     return F, G, feasible, price, total
 
 

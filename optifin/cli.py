@@ -87,6 +87,27 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--json", action="store_true", help="one JSON object on stdout")
 
+    p = command("catalog", _catalog, "screen a catalog of stock profiles against a problem")
+    p.add_argument("problem", help="problem file (YAML); its catalog section, if any, is used")
+    p.add_argument("--catalog", help="catalog CSV (default: the problem's, else the demo)")
+    p.add_argument(
+        "--orientation", choices=["along", "across", "both"], help="default: the problem's"
+    )
+    p.add_argument("--out", help="results folder (default results/<problem name>_catalog)")
+    p.add_argument(
+        "--search",
+        action="store_true",
+        help="also search free designs, to say how much a custom die would save",
+    )
+    p.add_argument("--quiet", action="store_true", help="no progress output")
+
+    p = command("study", _study, "material trade-off study: one run per construction")
+    p.add_argument("problem", help="problem file (YAML) with a study section")
+    p.add_argument("--out", help="results folder (default results/<problem name>_study)")
+    p.add_argument("--seed", type=int, help="random seed (default: the problem's)")
+    p.add_argument("--evaluations", type=int, help="evaluation budget of each run")
+    p.add_argument("--quiet", action="store_true", help="no progress output")
+
     p = command("draw", _draw, "section drawings (SVG and DXF, mm) of one design")
     p.add_argument("source", help="a problem file (with --set or --profile) or a results folder")
     p.add_argument("--row", type=int, help="results folder: the front.csv row to draw")
@@ -176,6 +197,91 @@ def _evaluate(args) -> int:
     for key, value in record.items():
         shown = f"{value:.6g}" if isinstance(value, float) else str(value)
         print(f"{key:<{width}}  {shown}")
+    return 0
+
+
+def _catalog(args) -> int:
+    from optifin.api import load_problem, optimise
+    from optifin.catalog import load_catalog, screen_catalog, screen_problem
+    from optifin.report.screening import write_screening
+
+    problem = load_problem(args.problem)
+    choice = problem.catalog
+    catalog = load_catalog(args.catalog, problem.library) if args.catalog else None
+    started = time.perf_counter()
+    if args.orientation:
+        orientations = ("along", "across") if args.orientation == "both" else (args.orientation,)
+        if catalog is None:
+            catalog = load_catalog(choice.path if choice else None, problem.library)
+        cuts = None
+        if choice is not None and choice.cut_lengths:
+            import numpy as np
+
+            cuts = np.array(choice.cut_lengths)
+        screened = screen_catalog(problem, catalog, cut_lengths=cuts, orientations=orientations)
+    else:
+        screened = screen_problem(problem, catalog)
+    search_result = None
+    if args.search:
+        progress = None if args.quiet else _Progress(problem.name)
+        try:
+            search_result = optimise(problem, progress=progress)
+        finally:
+            if progress is not None:
+                progress.close()
+    out = Path(args.out) if args.out else Path("results") / f"{problem.name}_catalog"
+    folder = write_screening(screened, problem, out, search_result=search_result)
+    feasible = int(screened.table["feasible"].sum()) if "feasible" in screened.table else 0
+    profiles = screened.table["profile_id"].nunique() if "profile_id" in screened.table else 0
+    print(
+        f"{problem.name}: {profiles} profiles, {len(screened.table):,} parts rated, "
+        f"{feasible:,} feasible, {len(screened.front)} on the Pareto front, "
+        f"{time.perf_counter() - started:.1f} s"
+    )
+    print(f"results: {folder}")
+    print("These are engineering estimates: verify by test before relying on them.")
+    return 0
+
+
+def _study(args) -> int:
+    from optifin.api import load_problem
+    from optifin.report.study_report import write_study
+    from optifin.study import run_study
+
+    problem = load_problem(args.problem)
+    if not problem.study:
+        raise OptifinError(
+            f"{args.problem}: no study section (give study.materials, two options or more)"
+        )
+    started = time.perf_counter()
+    bars: dict[str, _Progress] = {}
+
+    def progress(option: str, done: int, total: int) -> None:
+        if option not in bars:
+            for bar in bars.values():
+                bar.close()
+            bars[option] = _Progress(f"{problem.name}: {option}")
+        bars[option](done, total)
+
+    try:
+        result = run_study(
+            problem,
+            seed=args.seed,
+            evaluations=args.evaluations,
+            progress=None if args.quiet else progress,
+            target_resistance=problem.study_target,
+        )
+    finally:
+        for bar in bars.values():
+            bar.close()
+    out = Path(args.out) if args.out else Path("results") / f"{problem.name}_study"
+    folder = write_study(result, out)
+    print(
+        f"{problem.name}: {len(problem.study)} constructions compared, "
+        f"{time.perf_counter() - started:.1f} s"
+    )
+    print(f"results: {folder}")
+    print("These are engineering estimates: verify by test before relying on them.")
     return 0
 
 

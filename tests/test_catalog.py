@@ -405,7 +405,7 @@ def test_screened_part_equals_evaluate_cross_method(problem, screened, demo):
             "width_mm": p["width"] * 1e3,
             "length_mm": cut,
             "material": p["alloy"],
-            "process": "extrusion",
+            "process": "catalog_cut",  # a stock profile cut to length: no die set-up
         }
         ref = evaluate(hand, _hand_condition(problem, orientation), problem.library).iloc[0]
         for column in (
@@ -583,20 +583,26 @@ def test_cost_objectives_use_the_catalog_price_invariant(demo):
 def test_demo_mostly_meets_extrusion_limits_invariant(demo, problem, screened):
     """Invariant: most demo profiles meet the extrusion limits; a few break them on purpose.
 
-    The limits are those of optifin/data/processes.yaml (common practice, no source).
+    The limits are those of optifin/data/processes.yaml (common practice, no source). A
+    catalog part is a profile that exists already: it is rated as ``catalog_cut``, whose
+    loose sanity limits every demo profile meets, so screening names no process limit.
     """
     from optifin.model.geometry import BIT, manufacturing_reasons
 
-    designs, _ = demo.designs([0.1], problem.library)
+    designs, _ = demo.designs([0.1], problem.library, process="extrusion")
     reasons = manufacturing_reasons(designs, problem.library)
     broken = reasons != 0
     assert 2 <= broken.sum() <= len(demo) // 5
     for name in ("min_gap", "max_aspect_ratio", "min_fin_thickness"):
         assert (reasons & BIT[name]).any(), name
-    # screening names the reason of the dense-fin profile at every cut
+    stock, _ = demo.designs([0.1], problem.library)
+    assert set(np.asarray(stock.process)) == {problem.library.process_code("catalog_cut")}
+    assert not manufacturing_reasons(stock, problem.library).any()
+    # screening rates the dense-fin profile without the extrusion gap limit
     t = screened.table
     dense = t[t.profile_id == "DEMO-090-B"]
-    assert len(dense) and dense["infeasible_reason"].str.contains("gap narrower").all()
+    assert len(dense) and not dense["infeasible_reason"].str.contains("gap narrower").any()
+    assert (dense["process"].astype(str) == "catalog_cut").all()
 
 
 def test_orientations_argument(problem, demo):
@@ -609,3 +615,92 @@ def test_orientations_argument(problem, demo):
     assert "along_reason" not in only.shortest.columns
     with pytest.raises(SearchError, match="orientations"):
         screen_catalog(problem, demo, orientations=("sideways",))
+
+
+# -- catalog parts in the search: the problem side and the custom-die saving -----------------
+def test_search_parts_only_with_in_search_invariant(problem):
+    """Invariant: a problem without a catalog in its search offers no catalog parts."""
+    from optifin.catalog import search_parts
+
+    assert problem.catalog is None and search_parts(problem) is None
+    with_catalog = dataclasses.replace(
+        problem,
+        catalog=dataclasses.replace(_catalog_choice(), in_search=False),
+    )
+    assert search_parts(with_catalog) is None
+    parts = search_parts(dataclasses.replace(problem, catalog=_catalog_choice()))
+    # the 120 x 80 x 45 mm envelope, along: width <= 120 mm, base + fins <= 45 mm, cut 50 mm
+    fits = _fitting(load_catalog())
+    assert parts.ids.tolist() == fits.ids and (parts.index["cut_length"] == 0.05).all()
+
+
+def _catalog_choice():
+    from optifin.problem.spec import CatalogChoice
+
+    return CatalogChoice(path=None, cut_lengths=(0.05,), orientations=("along",), in_search=True)
+
+
+def test_custom_die_saving_by_hand_invariant():
+    """Invariant: the saving and the set-up test on a hand-made result.
+
+    Free designs: R 0.5 and 0.4 K/W, total cost 2.0 and 3.0 USD, heat rate 50 and 60 W, both
+    extruded; catalog part P1: 0.6 K/W, 1.0 USD, 40 W; P2 (better in all) is infeasible.
+    Extrusion set-up 1500 USD over the default quantity 1000 is 1.5 USD per part
+    (optifin/data/processes.yaml, indicative, common practice, no source). By hand:
+    R saving 0.6 - 0.4 = 0.2 K/W (1/3 of 0.6); heat rate saving 60 - 40 = 20 W (maximised);
+    cost saving 1.0 - 2.0 = -1.0 USD, before the set-up share -1.0 + 1.5 = 0.5 USD per
+    part, 500 USD over 1000 parts < 1500 USD: it does not pay; break-even 1500 / 0.5 = 3000.
+    """
+    from types import SimpleNamespace
+
+    import pandas as pd
+
+    from optifin.catalog import custom_die_saving
+    from optifin.errors import SearchError
+
+    problem = _problem(objectives="thermal_resistance, total_cost, heat_rate")
+    archive = pd.DataFrame(
+        {
+            "catalog_part": ["", "", "P1", "P2"],
+            "fin_count": [10, 12, 9, 9],
+            "fin_thickness_mm": [1.2, 1.0, 1.5, 1.5],
+            "fin_height_mm": [30.0, 35.0, 25.0, 25.0],
+            "base_thickness_mm": [5.0, 5.0, 4.0, 4.0],
+            "width_mm": [80.0, 90.0, 60.0, 60.0],
+            "length_mm": [60.0, 70.0, 50.0, 40.0],
+            "material": ["al_6063_t5"] * 4,
+            "process": ["extrusion", "extrusion", "catalog_cut", "catalog_cut"],
+            "thermal_resistance_K_per_W": [0.5, 0.4, 0.6, 0.1],
+            "total_cost": [2.0, 3.0, 1.0, 0.1],
+            "heat_rate_W": [50.0, 60.0, 40.0, 100.0],
+            "feasible": [True, True, True, False],
+        }
+    )
+    result = SimpleNamespace(
+        problem=problem,
+        objective_columns=[
+            ("thermal_resistance_K_per_W", "minimise"),
+            ("total_cost", "minimise"),
+            ("heat_rate_W", "maximise"),
+        ],
+        archive=archive,
+        front=archive.iloc[:0],
+    )
+    out = custom_die_saving(result).set_index("objective")
+    r, c, q = out.loc["thermal_resistance"], out.loc["total_cost"], out.loc["heat_rate"]
+    assert (r["catalog_part"], r["catalog_value"], r["free_value"]) == ("P1", 0.6, 0.4)
+    assert r["saving"] == pytest.approx(0.2, rel=1e-12)
+    assert r["relative_saving"] == pytest.approx(1 / 3, rel=1e-12)
+    assert r["unit"] == "K/W" and np.isnan(r["setup_cost"]) and np.isnan(r["pays_setup"])
+    assert "12 fins 1 mm" in r["free_design"] and r["catalog_cut_length_mm"] == 50.0
+    assert q["saving"] == pytest.approx(20.0) and q["sense"] == "maximise"
+    assert (c["catalog_value"], c["free_value"], c["unit"]) == (1.0, 2.0, "USD")
+    assert c["saving"] == pytest.approx(-1.0, rel=1e-12)
+    assert (c["setup_cost"], c["quantity"], c["setup_per_part"]) == (1500.0, 1000, 1.5)
+    assert c["gross_saving_per_part"] == pytest.approx(0.5, rel=1e-12)
+    assert isinstance(c["pays_setup"], bool) and not c["pays_setup"]
+    assert c["break_even_quantity"] == pytest.approx(3000.0, rel=1e-12)
+    only = custom_die_saving(result, objective="total_cost")
+    assert only["objective"].tolist() == ["total_cost"]
+    with pytest.raises(SearchError, match="not an objective"):
+        custom_die_saving(result, objective="mass")

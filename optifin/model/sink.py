@@ -478,7 +478,7 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
     flags = {"fin_1d_uniform": np.zeros(len(designs), bool)}
     pins = _pin_arrays(designs) if designs.has_pins else None  # a block is all plates or pins
     if solid.tapered:
-        used.append("trapezoidal_fin_efficiency")
+        used.append("fin_1d_trapezoidal")
 
     forced = _forced(g, solid, cond, pins) if cond.cooling == "forced" else None
     radiating = cond.radiation_on
@@ -516,7 +516,7 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
 
     inserts = np.flatnonzero(designs.insert_material >= 0) if designs.has_inserts else None
     if inserts is not None:
-        used.append("insert_base_resistance")
+        used.append("insert_base_variational")
 
     def spread(g_total):
         """Mean (and peak) base rise per total watt, spreading and interface included."""
@@ -592,6 +592,27 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
     flags["fin_1d_uniform"] |= _out(
         "fin_1d_uniform", biot=fins.transverse_biot(part["h"], solid.k, g.t)
     )
+    if solid.tapered:
+        flags["fin_1d_trapezoidal"] = _out(
+            "fin_1d_trapezoidal",
+            biot=fins.transverse_biot(part["h"], solid.k, g.t),
+            half_angle=fins.tapered_fin_half_angle(g.t, g.t_tip, g.height),
+        )
+    if inserts is not None:
+        s0 = cond.sources[0]
+        flags["insert_base_variational"] = _out(
+            "insert_base_variational",
+            **layered_base.insert_groups(
+                designs.insert_width,
+                designs.insert_length,
+                np.take(library.array("conductivity"), np.maximum(designs.insert_material, 0)),
+                s0.size_x,
+                s0.size_y,
+                solid.k_base,
+            ),
+        ) & (designs.insert_material >= 0)
+    if forced is not None and cond.bypassed:
+        used.append("split_flow_bypass")
     used.extend(part["used"])
     flags.update(part["flags"])
     if radiating:
@@ -670,7 +691,7 @@ def _spreading(g, solid, cond, method, h_eff, r_base) -> dict:
     if method == "song_lee_au_1994":
         s = sources[0]
         r_avg, r_max = spreading.spreading_song_lee_au_1994(
-            s.size_x * s.size_y, g.base_area, g.base, solid.k, h_eff
+            s.size_x * s.size_y, g.base_area, g.base, solid.k_base, h_eff
         )
         r_mean = r_film + r_base + r_avg
         return {
@@ -732,6 +753,9 @@ def _insert_spreading(out, rows, designs, g, solid, cond, g_total, library) -> N
     if len(cond.sources) != 1 or not cond.sources[0].centred:
         raise ModelError("a spreader insert needs one heat source centred on the base")
     s = cond.sources[0]
+    rows = rows[(g.reasons[rows] & NONEXISTENT) == 0]  # stand-in rows are NaN'd later
+    if not rows.size:
+        return
     k_ins = np.take(library.array("conductivity"), designs.insert_material[rows])
     h_eff = (g_total / g.base_area)[rows]
     r_mean, r_peak = layered_base.insert_base_resistance(

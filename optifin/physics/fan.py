@@ -109,6 +109,14 @@ class FanCurve:
         return hash((self.name, self.flow.tobytes(), self.pressure.tobytes()))
 
 
+_CFM = 0.3048**3 / 60.0  #: one cubic foot per minute [m³/s], for messages
+
+
+def _listed(values) -> str:
+    """Values for a message, four significant digits (no float noise)."""
+    return "[" + ", ".join(f"{v:.4g}" for v in values) + "]"
+
+
 def _validated(flow, pressure, name: str) -> tuple[np.ndarray, np.ndarray]:
     """Checked, read-only float copies of a fan table; :class:`ModelError` if it is invalid."""
     label = f"fan curve {name!r}" if name else "fan curve"
@@ -128,21 +136,21 @@ def _validated(flow, pressure, name: str) -> tuple[np.ndarray, np.ndarray]:
     _check(p >= 0, f"{label}: pressures must be >= 0, found {p.min()} Pa")
     _check(
         np.diff(q) > 0,
-        f"{label}: flows must be strictly increasing, found {q.tolist()} m^3/s",
+        f"{label}: flows must be strictly increasing, found {_listed(q / _CFM)} CFM",
     )
     _check(
         np.diff(p) <= 0,
         f"{label}: pressures must not increase with flow (a stall dip is not supported), "
-        f"found {p.tolist()} Pa",
+        f"found {_listed(p)} Pa",
     )
     if q[0] != 0:
         raise ModelError(
-            f"{label}: the first point must be shut-off (flow 0), found {q[0]} m^3/s; "
+            f"{label}: the first point must be shut-off (flow 0), found {q[0] / _CFM:.4g} CFM; "
             "add the shut-off pressure at zero flow"
         )
     if p[-1] != 0:
         raise ModelError(
-            f"{label}: the last point must be free delivery (pressure 0), found {p[-1]} Pa; "
+            f"{label}: the last point must be free delivery (pressure 0), found {p[-1]:.4g} Pa; "
             "add the free-delivery flow at zero pressure"
         )
     if p[-2] <= 0:

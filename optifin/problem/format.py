@@ -394,7 +394,11 @@ class ExactlyOneWhen:
             return
         given = [k for k in self.keys if k in value]
         if len(given) != 1:
-            what = "neither" if not given else "both"
+            if not given:
+                what = "neither"
+            else:  # name the keys given: "both" alone does not say which two of three
+                count = "both" if len(given) == 2 else f"{len(given)}"
+                what = f"{count} ({' and '.join(given)})"
             ctx.error(
                 path,
                 f"{self.key} {self.equals} needs exactly one of {' or '.join(self.keys)}, "
@@ -1221,6 +1225,13 @@ STUDY = Section(
             required=("material", "min", "max"),
             description="Sweep one material's price per kg to find where the cheapest "
             "option changes.",
+        ),
+        "target_resistance": Quantity(
+            kind="thermal_resistance",
+            example='"0.35 K/W"',
+            sign="positive",
+            description="Thermal resistance the cheapest design of each option must reach "
+            "in the price sweep; default that of the first option's knee design.",
         ),
     },
     required=("materials",),

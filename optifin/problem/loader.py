@@ -15,6 +15,7 @@ import json
 import math
 import re
 from collections.abc import Mapping
+from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
@@ -72,6 +73,7 @@ _NATURAL_ONLY_FORCED = (
     "volumetric_flow",
     "entropy_generation_rate",
 )
+CATALOG_PROCESS = "catalog_cut"  #: the process of stock profiles cut to length
 #: Defaults of variables a problem may leave out (lengths only where that fin type is used).
 _CHOICE_DEFAULTS = {"finish": ("bare",), "fin_type": ("plate",), "pin_layout": ("inline",)}
 #: Stand-ins for the variables of a fin type the problem does not use (never evaluated).
@@ -359,8 +361,8 @@ class _Resolver:
 
         try:
             load_catalog(path, self.library)
-        except DataError as exc:
-            for line in str(exc).splitlines():
+        except DataError as exc:  # a CatalogError lists its findings, one per file line
+            for line in getattr(exc, "problems", None) or str(exc).splitlines():
                 if line.strip():
                     self.error("catalog.file", line.strip())
             return
@@ -378,7 +380,7 @@ class _Resolver:
             count = math.floor((cuts.high - cuts.low) / cuts.step + 1e-9) + 1
             grid = tuple(float(cuts.low + cuts.step * i) for i in range(count))
         orientations = section.get("orientations") or ("along", "across")
-        if INVALID in orientations:
+        if orientations is INVALID or INVALID in orientations:
             return
         self.out["catalog"] = CatalogChoice(
             path=path,
@@ -397,10 +399,15 @@ class _Resolver:
         options = []
         names: set[str] = set()
         sources = self.out.get("sources") or []
-        for i, fields in enumerate(section.get("materials") or []):
+        entries = section.get("materials")
+        for i, fields in enumerate(entries if isinstance(entries, list) else []):
             path = join("study.materials", i)
-            if not isinstance(fields, dict) or INVALID in fields.values():
-                continue
+            if (
+                not isinstance(fields, dict)
+                or INVALID in fields.values()
+                or not {"name", "material"} <= fields.keys()
+            ):
+                continue  # already reported
             name = fields["name"]
             if name in names:
                 self.error(join(path, "name"), f"{name!r} names another option too")
@@ -427,7 +434,11 @@ class _Resolver:
                     )
             insert = fields.get("insert")
             extra = {}
-            if isinstance(insert, dict) and INVALID not in insert.values():
+            if (
+                isinstance(insert, dict)
+                and INVALID not in insert.values()
+                and {"material", "thickness", "footprint"} <= insert.keys()
+            ):
                 one_centred = len(sources) == 1 and sources[0].get("position") is None
                 if not one_centred:
                     self.error(
@@ -439,7 +450,7 @@ class _Resolver:
                 base = self.spans.get("base_thickness")
                 if base is not None and thickness > base.low:
                     self.error(
-                        join(path, "insert", "thickness"),
+                        join(join(path, "insert"), "thickness"),
                         f"{thickness.text} is thicker than the thinnest base {text_of(base.low)}",
                     )
                 for size, largest in (
@@ -448,7 +459,7 @@ class _Resolver:
                 ):
                     if largest is not None and size > largest * (1 + 1e-9):
                         self.error(
-                            join(path, "insert", "footprint"),
+                            join(join(path, "insert"), "footprint"),
                             f"{size.text} is larger than the base ({_mm(largest)})",
                         )
                 extra = dict(
@@ -467,8 +478,14 @@ class _Resolver:
                 )
             )
         self.out["study"] = tuple(options)
+        target = section.get("target_resistance")
+        self.out["study_target"] = None if target in (None, INVALID) else float(target)
         sweep = section.get("price_sweep")
-        if isinstance(sweep, dict) and INVALID not in sweep.values() and "min" in sweep:
+        if (
+            isinstance(sweep, dict)
+            and INVALID not in sweep.values()
+            and {"material", "min", "max"} <= sweep.keys()  # a missing key is reported
+        ):
             if not sweep["max"] > sweep["min"]:
                 self.error("study.price_sweep.max", "must be above min")
                 return
@@ -540,17 +557,23 @@ class _Resolver:
             self.error("cooling.surroundings_temperature", f"{ts.text} is above {T_MAX:g} K")
         self.out["fan"] = self._fan(cool.get("fan"))
         loss = _section(cool, "extra_loss")
-        if loss and "fan" not in cool:
+        if loss and "fan" not in cool and self.mode != "natural":  # natural: reported
             self.error(
                 "cooling.extra_loss", "an extra system loss needs a fan (cooling.fan) to act on"
             )
         if loss.get("pressure_drop") is not None and "at_flow" not in loss:
             self.error("cooling.extra_loss.at_flow", "missing (the flow of pressure_drop)")
+        if "at_flow" in loss and "pressure_drop" not in loss:
+            self.error(
+                "cooling.extra_loss.pressure_drop",
+                "missing (at_flow is the flow at which a pressure_drop was measured)",
+            )
         if "area" in loss and "coefficient" not in loss:
             self.error("cooling.extra_loss.area", "area needs a coefficient to go with it")
         self.out["extra_loss"] = loss
         clearance = _section(cool, "clearance")
-        if clearance.get("open") and ("side" in clearance or "top" in clearance):
+        opened = clearance.get("open") is True  # an invalid value is reported already
+        if opened and ("side" in clearance or "top" in clearance):
             self.error("cooling.clearance", "give open: true or side/top gaps, not both")
         if clearance and "fan" in cool:
             self.error(
@@ -563,7 +586,7 @@ class _Resolver:
                 "cooling.clearance",
                 "an open sink needs the approach_velocity of the duct or stream, not a flow",
             )
-        if clearance.get("open"):
+        if opened:
             side = top = math.inf
         else:
             side, top = clearance.get("side"), clearance.get("top")
@@ -578,7 +601,9 @@ class _Resolver:
         from optifin.physics import fan as fan_physics
 
         path = "cooling.fan"
-        if "model" in fan and fan["model"] is not INVALID:
+        if fan.get("model") is INVALID:
+            return None  # already reported
+        if "model" in fan:
             try:
                 fans = load_fans()
             except DataError as exc:
@@ -595,7 +620,9 @@ class _Resolver:
         elif isinstance(fan.get("curve"), dict):
             table = fan["curve"]
             flow, pressure = table.get("flow"), table.get("pressure")
-            if flow is None or pressure is None or INVALID in (*flow, *pressure):
+            if not isinstance(flow, list) or not isinstance(pressure, list):
+                return None  # missing or invalid: already reported
+            if INVALID in (*flow, *pressure):
                 return None
             if len(flow) != len(pressure):
                 self.error(
@@ -605,7 +632,7 @@ class _Resolver:
                 return None
             try:
                 curve = fan_physics.fan_curve(
-                    [float(q) for q in flow], [float(p) for p in pressure], name="curve"
+                    [float(q) for q in flow], [float(p) for p in pressure], name=""
                 )
             except ModelError as exc:
                 self.error(join(path, "curve"), str(exc))
@@ -654,7 +681,13 @@ class _Resolver:
                 "pin fins in natural convection: no published pin-array correlation is "
                 "implemented; use plate fins or forced cooling",
             )
-        if "pin" not in types:
+        elif "pin" in types and self.out.get("radiation"):
+            self.error(
+                "cooling.radiation",
+                "radiation from pin-fin arrays is not modelled (the view factors are for "
+                "plate-fin channels); remove it or choose plate fins only",
+            )
+        if "pin" not in types and "fin_type" in self.spans:  # an invalid fin_type: reported
             for name in ("pin_layout", *PIN_VARIABLES):
                 if name in raw:
                     self.error(join("variables", name), "pin fins are not among variables.fin_type")
@@ -824,6 +857,13 @@ class _Resolver:
     def materials(self) -> None:
         lib = self.library
         mats, procs, fins = (self.spans.get(k) for k in ("material", "process", "finish"))
+        if procs is not None and CATALOG_PROCESS in procs:
+            self.error(
+                "variables.process",
+                f"{CATALOG_PROCESS} stands for stock catalog parts, which have no free "
+                "geometry; offer catalog parts with the catalog section (in_search: true)",
+            )
+            return
         if lib is None or mats is None or procs is None or fins is None:
             return
         mi = [lib.material_code(m) for m in mats]
@@ -1020,6 +1060,7 @@ def _assemble(
         parsed,
         library,
     )
+    resolved = _canonical({**resolved, **_catalog_and_study(values, parsed)})
     return Problem(
         name=name,
         source=source,
@@ -1035,6 +1076,7 @@ def _assemble(
         catalog=values.get("catalog"),
         study=values.get("study", ()),
         price_sweep=values.get("price_sweep"),
+        study_target=values.get("study_target"),
     )
 
 
@@ -1134,6 +1176,28 @@ def _resolved(
             **overrides,
         }
     )
+
+
+def _catalog_and_study(values: dict, parsed: dict) -> dict:
+    """The catalog and study sections for the resolved form, only where the file gives them
+    (so that files without them keep their hash). The catalog file is kept as written, not as
+    the absolute path, so that the hash does not depend on where the files sit."""
+    out: dict[str, Any] = {}
+    catalog = values.get("catalog")
+    if catalog is not None:
+        out["catalog"] = {
+            "file": _section(parsed, "catalog").get("file"),
+            "cut_lengths": list(catalog.cut_lengths),
+            "orientations": list(catalog.orientations),
+            "in_search": catalog.in_search,
+        }
+    if values.get("study"):
+        sweep = values.get("price_sweep")
+        out["study"] = {
+            "materials": [asdict(option) for option in values["study"]],
+            "price_sweep": None if sweep is None else asdict(sweep),
+        }
+    return out
 
 
 def _override_si(library: Library, section: str, key: str, fields: Mapping) -> dict:

@@ -213,6 +213,7 @@ class Problem:
     catalog: CatalogChoice | None = None
     study: tuple[MaterialOption, ...] = ()
     price_sweep: PriceSweep | None = None
+    study_target: float | None = None  #: target thermal resistance of the study [K/W]
     #: design columns fixed for every design (base_material, insert_*): keys and SI values
     construction: dict = field(default_factory=dict)
 

@@ -791,8 +791,54 @@ def report_blocks(result, folder, marks: Mapping[str, int] | None = None) -> lis
     blocks += _search_blocks(result)
     blocks += _figure_blocks(folder)
     blocks += _marked_blocks(result, marks, folder)
+    blocks += _catalog_blocks(result)
     blocks += _validity_blocks(result)
     blocks += [("h", 2, "Safety"), *(("p", text) for text in SAFETY)]
+    return blocks
+
+
+def _catalog_blocks(result) -> list[Block]:
+    """With catalog parts in the search: what a custom die would save over the best part."""
+    if "catalog_part" not in result.front.columns:
+        return []
+    from optifin.catalog import custom_die_saving
+
+    saving = custom_die_saving(result)
+    on_front = int((result.front["catalog_part"] != "").sum())
+    blocks: list[Block] = [
+        ("h", 2, "Catalog parts against a custom die"),
+        (
+            "p",
+            f"{on_front} of the {len(result.front)} front designs are stock catalog parts "
+            "(process `catalog_cut`: no die set-up, priced by the catalog). For each "
+            "objective, the best feasible catalog part against the best feasible free design, "
+            "whose extrusion needs a new die:",
+        ),
+    ]
+    lines = []
+    for _, row in saving.iterrows():
+        if pd.isna(row["saving"]):
+            lines.append(f"`{row['column']}`: no feasible design on one side.")
+            continue
+        better = "the free design" if row["saving"] > 0 else "the catalog part"
+        text = (
+            f"`{row['column']}`: catalog `{row['catalog_part']}` cut to "
+            f"{format_number(row['catalog_cut_length_mm'])} mm gives "
+            f"{format_number(row['catalog_value'])}, the free design "
+            f"({row['free_design']}) {format_number(row['free_value'])} {row['unit']}: "
+            f"{better} is better by {format_number(abs(row['saving']))} {row['unit']}"
+        )
+        if "setup_cost" in row and pd.notna(row.get("setup_cost")):
+            pays = "pays" if row["pays_setup"] else "does not pay"
+            text += (
+                f"; the die set-up of {format_number(row['setup_cost'])} over "
+                f"{int(row['quantity'])} parts ({format_number(row['setup_per_part'])} per "
+                f"part) {pays} for itself"
+            )
+            if np.isfinite(row.get("break_even_quantity", np.nan)):
+                text += f", break-even at {round(row['break_even_quantity'])} parts"
+        lines.append(text + ".")
+    blocks.append(("ul", lines))
     return blocks
 
 

@@ -1,7 +1,17 @@
-"""The search: a genetic algorithm or the exact grid, an archive and its Pareto front."""
+"""The search: a genetic algorithm or the exact grid, an archive and its Pareto front.
+
+When the problem offers its catalog to the search (``catalog.in_search``), catalog parts
+compete with free designs through the encoding's ``part`` gene (see
+:mod:`optifin.search.encoding`). Their objectives, constraints and result rows price the
+metal at the catalog price (:meth:`optifin.catalog.SearchParts.costs`): the
+``material_cost`` of a catalog part is its catalog price and its ``total_cost`` that plus
+the model's ``process_cost`` (process ``catalog_cut``, no set-up). The result tables then
+carry a ``catalog_part`` column: the profile id of a catalog part, ``""`` for a free design.
+"""
 
 from __future__ import annotations
 
+import copy
 import time
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -15,7 +25,7 @@ from optifin.model.design import FIN_TYPES, PIN_LAYOUTS
 from optifin.problem.spec import LIMITS, LOWER_LIMITS, Problem
 from optifin.search.encoding import Encoding
 from optifin.search.ga import run_ga
-from optifin.search.objectives import constraint_names, score
+from optifin.search.objectives import Scores, constraint_names, score
 from optifin.search.pareto import RunningFront, hypervolume, normaliser
 
 __all__ = ["SearchResult", "optimise"]
@@ -62,9 +72,11 @@ class _Recorder:
         self.model_seconds = 0.0
 
     def __call__(self, X: np.ndarray):
-        X = self.encoding.snap(X)
+        X = self.encoding.canonical(X)
         start = time.perf_counter()
-        s = score(self.problem, self.encoding.decode(X))
+        s = _score(
+            self.problem, self.encoding.decode(X), self.encoding.parts, self.encoding.part_codes(X)
+        )
         self.model_seconds += time.perf_counter() - start
         self.n_eval += X.shape[0]
         self.n_feasible += int(s.feasible.sum())
@@ -109,7 +121,7 @@ def optimise(
         algorithm = "exact"
 
     timings: dict[str, float] = {}
-    notes: list[str] = []
+    notes: list[str] = list(encoding.notes)
     started = time.perf_counter()
     n_constr = len(constraint_names(problem))
     if algorithm == "exact":
@@ -126,9 +138,26 @@ def optimise(
             completed = False
     else:
         recorder = _Recorder(problem, encoding)
+        column = encoding.part_column
+        ga_encoding = encoding
+        if column is not None:
+            # catalog parts are few: rate every one exactly, then spend the GA's budget on
+            # the free designs (in one mixed population the parts, which need no die, crowd
+            # the free designs out before the GA has found the good ones)
+            parts = np.tile(encoding.xl, (len(encoding.parts), 1))
+            parts[:, column] = np.arange(1, len(encoding.parts) + 1)
+            recorder(parts)
+            ga_encoding = copy.copy(encoding)
+            ga_encoding.xl, ga_encoding.xu = encoding.xl.copy(), encoding.xu.copy()
+            ga_encoding.xl[column] = ga_encoding.xu[column] = 0.0
+            recorder.encoding = ga_encoding
+            notes.append(
+                f"catalog: all {len(encoding.parts)} parts rated exactly; the genetic search "
+                "covers the free designs; the front is taken over both"
+            )
         completed = run_ga(
             algorithm,
-            encoding,
+            ga_encoding,
             len(problem.objectives),
             n_constr,
             recorder,
@@ -163,7 +192,12 @@ def _assemble(problem, encoding, recorder, algorithm, seed, notes) -> SearchResu
     )
     history.insert(2, "hypervolume", hv)
 
-    front = design_table(problem, encoding.decode(front_X))
+    front = design_table(
+        problem,
+        encoding.decode(front_X),
+        part=encoding.part_codes(front_X) if encoding.parts is not None else None,
+        parts=encoding.parts,
+    )
     archive = archive_table(problem, encoding, recorder.batches)
     objective_columns = [(objective_column(o.name), o.sense) for o in problem.objectives]
     return SearchResult(
@@ -189,16 +223,51 @@ def objective_column(name: str) -> str:
     return COLUMN_NAMES[OBJECTIVES[name][0]]
 
 
-def design_table(problem: Problem, designs) -> pd.DataFrame:
+def _score(problem: Problem, designs, parts=None, part=None) -> Scores:
+    """:func:`score`, with catalog parts (``part`` > 0) priced by their catalog.
+
+    ``parts`` is the :class:`optifin.catalog.SearchParts` of the search (None: plain
+    ``score``); the returned arrays carry the catalog figures in ``material_cost`` and
+    ``total_cost`` (a new dict: the model's arrays are not written to).
+    """
+    s = score(problem, designs)
+    if parts is None or part is None or not np.any(part > 0):
+        return s
+    from optifin.catalog import catalog_scores
+
+    material, total = parts.costs(part, s.arrays)
+    F, G, feasible = catalog_scores(problem, s, material, total)
+    arrays = {**s.arrays, "material_cost": material, "total_cost": total}
+    return Scores(F=F, G=G, feasible=feasible, arrays=arrays)
+
+
+def design_table(problem: Problem, designs, part=None, parts=None) -> pd.DataFrame:
     """Full result rows for designs: the model table plus one margin per constraint.
 
     ``margin_<constraint>`` is the normalised distance to the limit, >= 0 when satisfied;
     the smallest margin is the binding constraint. Rows are sorted by the first objective,
     best first.
+
+    When the problem offers catalog parts to the search (``catalog.in_search``), the
+    table's first column is ``catalog_part``: the profile id of each catalog part, ``""``
+    for a free design. ``part`` gives each design's part code (0 free, k catalog part k
+    of :func:`optifin.catalog.search_parts`); without it the designs are matched to the
+    parts (:meth:`optifin.catalog.SearchParts.match`). ``parts`` stands for the search's
+    parts (read from the problem's catalog otherwise). A catalog part's ``material_cost``
+    is its catalog price and its ``total_cost`` that plus ``process_cost``; objectives,
+    margins and feasibility use these figures.
     """
-    s = score(problem, designs)  # one model evaluation serves the table and the margins
+    if parts is None:
+        from optifin.catalog import search_parts
+
+        parts = search_parts(problem)
+    if parts is not None:
+        part = parts.match(designs) if part is None else np.asarray(part, dtype=np.int64)
+    s = _score(problem, designs, parts, part)  # one model evaluation: table and margins
     names = [source.name for source in problem.condition.sources]
     table = to_frame(designs, s.arrays, problem.library, names)
+    if parts is not None:
+        table.insert(0, "catalog_part", parts.part_ids(part))
     for name, column in zip(constraint_names(problem), s.G.T, strict=True):
         table[f"margin_{name}"] = 0.0 - column  # 0.0 - x: no negative zeros in the table
     violated = [
@@ -229,7 +298,12 @@ def archive_table(problem: Problem, encoding: Encoding, batches) -> pd.DataFrame
     cv = np.concatenate([b[3] for b in batches])
     designs = encoding.decode(X)
     lib = problem.library
-    data = {
+    data = {}
+    if encoding.parts is not None:
+        data["catalog_part"] = encoding.parts.part_ids(encoding.part_codes(X))
+    elif problem.catalog is not None and problem.catalog.in_search:  # no part fits
+        data["catalog_part"] = np.full(X.shape[0], "", dtype=object)
+    data |= {
         "fin_count": designs.fin_count,
         "fin_thickness_mm": designs.fin_thickness * 1e3,
         "fin_height_mm": designs.fin_height * 1e3,

@@ -326,3 +326,56 @@ def test_invariant_pins_with_radiation_are_refused():
     """Invariant: the radiation model is for plate channels; pins with radiation refuse."""
     with pytest.raises(ModelError, match="radiation from pin-fin arrays"):
         evaluate(PINS, _cond(approach_velocity=3.0, radiation=True))
+
+
+def test_invariant_an_impossible_design_with_an_insert_does_not_stop_the_batch():
+    """Invariant: a sink that cannot exist is a NaN row even with an insert; its neighbours
+    are rated (regression of a batch-wide error found in review)."""
+    designs = {
+        **PLATE,
+        "fin_count": [10, 40],
+        "fin_thickness": [1e-3, 2.5e-3],
+        "width": 0.08,
+        "length": 0.08,
+        "insert_material": "cu_c11000",
+        "insert_thickness": 2e-3,
+        "insert_width": 0.04,
+        "insert_length": 0.04,
+        "process": "machining",
+    }
+    table = evaluate(designs, _cond(approach_velocity=2.0))
+    assert np.isfinite(table["thermal_resistance_K_per_W"].iloc[0])
+    assert not table["feasible"].iloc[1]
+
+
+@pytest.mark.parametrize(
+    ("designs", "kw"),
+    [
+        (PLATE, dict(fan=FANS["demo_60x25"].curve)),
+        (PLATE, dict(approach_velocity=3.0, side_clearance=0.005, top_clearance=0.005)),
+        (PINS, dict(approach_velocity=3.0)),
+        (PINS, dict(approach_velocity=3.0, pin_heat_transfer="khan_2005")),
+        ({**PLATE, "fin_tip_thickness": 0.6e-3}, dict(approach_velocity=3.0)),
+        (
+            {
+                **PLATE,
+                "insert_material": "cu_c11000",
+                "insert_thickness": 2e-3,
+                "insert_width": 0.04,
+                "insert_length": 0.04,
+                "process": "machining",
+            },
+            dict(approach_velocity=3.0),
+        ),
+    ],
+)
+def test_invariant_every_correlation_used_is_registered(designs, kw):
+    """Invariant: the run record cites every correlation the model used, so each name the
+    model reports must be in the registry, with a validity flag column."""
+    from optifin.physics import registry
+
+    table = evaluate(designs, _cond(**kw))
+    for name in table.attrs["correlations"]:
+        registry.get(name)
+    flagged = {c.removeprefix("out_of_range_") for c in table.columns if c.startswith("out_of")}
+    assert flagged <= set(table.attrs["correlations"])
