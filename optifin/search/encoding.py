@@ -22,7 +22,11 @@ height, the cut as its length, the alloy as its material, process ``catalog_cut`
 finish bare; the free genes of its row are ignored, and the problem's fixed construction
 (base material, insert) does not apply to it (a stock profile is one piece of its alloy).
 The exact grid enumerates the free grid once (part 0) and then each part once (the free
-genes at their lower bounds): ``grid_size`` = free grid + K, not their product.
+genes at their lower bounds): ``grid_size`` = free grid + K, not their product. The genetic
+search (:func:`optifin.search.optimise`) rates every part exactly first and then runs with
+the ``part`` gene held at "free": in one mixed population the parts, which need no die,
+crowd out the free designs before the good ones are found (measured on the vendor example:
+lightest free design 0.173 kg mixed against 0.052 kg free-only).
 """
 
 from __future__ import annotations
