@@ -6,7 +6,16 @@ The public API (``load_problem``, ``evaluate_designs``, ``optimise``, ``write_ru
 
 __version__ = "0.1.0"
 
-_API = ("design_from_values", "draw", "evaluate_designs", "load_problem", "optimise", "write_run")
+_API = (
+    "design_from_values",
+    "draw",
+    "evaluate_designs",
+    "load_problem",
+    "optimise",
+    "screen_catalog",
+    "study_materials",
+    "write_run",
+)
 __all__ = ["__version__", *_API]
 
 

@@ -31,6 +31,8 @@ __all__ = [
     "evaluate_designs",
     "load_problem",
     "optimise",
+    "screen_catalog",
+    "study_materials",
     "write_run",
 ]
 
@@ -148,3 +150,34 @@ def draw(design: Mapping[str, Any], out: str | Path, formats=("svg", "dxf"), tit
         else:
             raise ConfigError(f"drawing format {fmt!r}: expected svg or dxf")
     return paths
+
+
+def screen_catalog(problem: Problem, catalog=None, out: str | Path | None = None):
+    """Screen the problem's catalog (its file, cut lengths, orientations; the demo catalog
+    without one): every stock profile at every cut length. Returns the
+    :class:`optifin.catalog.ScreenResult`; with ``out`` also writes its results folder."""
+    from optifin.catalog import load_catalog, screen_problem
+
+    if catalog is not None and not hasattr(catalog, "designs"):
+        catalog = load_catalog(catalog, problem.library)
+    result = screen_problem(problem, catalog)
+    if out is not None:
+        from optifin.report.screening import write_screening
+
+        write_screening(result, problem, out)
+    return result
+
+
+def study_materials(problem: Problem, out: str | Path | None = None, **options):
+    """Run the problem's material study (one search per construction); returns the
+    :class:`optifin.study.StudyResult`, and writes its folder when ``out`` is given.
+    ``options`` go to :func:`optifin.study.run_study` (seed, evaluations, ...)."""
+    from optifin.study import run_study
+
+    options.setdefault("target_resistance", problem.study_target)
+    result = run_study(problem, **options)
+    if out is not None:
+        from optifin.report.study_report import write_study
+
+        write_study(result, out)
+    return result

@@ -64,3 +64,26 @@ def test_study_needs_a_study_section(capsys):
 def test_missing_problem_file_is_a_one_line_error(command, tmp_path, capsys):
     assert main([command, str(tmp_path / "nope.yaml")]) == 2
     assert "nope.yaml" in capsys.readouterr().err
+
+
+def test_invariant_api_screen_equals_command_front(tmp_path):
+    """Invariant: optifin.screen_catalog and `optifin catalog` give the same front."""
+    import optifin
+
+    problem = optifin.load_problem(ROOT / "problems" / "vendor_catalog.yaml")
+    result = optifin.screen_catalog(problem, out=tmp_path / "api")
+    assert (
+        main(
+            [
+                "catalog",
+                str(ROOT / "problems" / "vendor_catalog.yaml"),
+                "--out",
+                str(tmp_path / "cli"),
+                "--quiet",
+            ]
+        )
+        == 0
+    )
+    cli = pd.read_csv(tmp_path / "cli" / "front.csv")
+    assert len(cli) == len(result.front)
+    assert (tmp_path / "api" / "front.csv").exists()
