@@ -1196,6 +1196,7 @@ def _catalog_and_study(values: dict, parsed: dict) -> dict:
         out["study"] = {
             "materials": [asdict(option) for option in values["study"]],
             "price_sweep": None if sweep is None else asdict(sweep),
+            "target_resistance": values.get("study_target"),
         }
     return out
 
