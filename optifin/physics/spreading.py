@@ -484,7 +484,7 @@ def _flux_channel(a, b, t, k, h, c, d, x0, y0, n_terms, *, centre):
     tail_stop = _TAIL_FACTOR * m_terms
     block_t = int(min(tail_stop - m_terms, max(1, _BLOCK_ELEMENTS // (n_des * n_src))))
     for side, size, pos, o_side, o_size, o_pos in ((a, c, x0, b, d, y0), (b, d, y0, a, c, x0)):
-        modes = _mode_table(side, size, pos, block_t)
+        modes = _mode_table(side, size, pos, block_t, direct=True)
         tail_mean = np.zeros((n_des, n_src, n_src))
         tail_ctr = np.zeros((n_des, n_src, n_src)) if centre else None
         limit = _overlap(o_pos, o_size)
@@ -545,15 +545,27 @@ def _k_kernel(zeta2, t, g, zeta2_min):
     return out
 
 
-def _mode_table(side, size, pos, block):
+def _mode_table(side, size, pos, block, direct=False):
     """Cosine factors of the sources for consecutive blocks of mode numbers.
 
     Returns ``modes(start, count)`` -> (index (B,), cos(ι π X/side) (N, S, B), mean of
     cos(ι π x/side) over each source (N, S, B)). Angle addition from a base table of
-    ``block`` angles keeps the trigonometric work per block at O(N S).
+    ``block`` angles keeps the trigonometric work per block at O(N S) when the table serves
+    many blocks; ``direct`` computes each block's two trigonometric arrays outright, which
+    is half the work for a table used once (the tail sums).
     """
     step = np.pi * pos / side[:, None]  # (N, S)
     half = 0.5 * np.pi * size / side[:, None]
+    if direct:
+
+        def direct_modes(start, count):
+            idx = np.arange(start, start + count)
+            cos = np.cos(idx * step[..., None])
+            arg = idx * half[..., None]
+            sinc = np.divide(np.sin(arg), arg, out=np.ones_like(arg), where=arg != 0)
+            return idx, cos, cos * sinc
+
+        return direct_modes
     j = np.arange(block)
     base_cos, base_sin = np.cos(j * step[..., None]), np.sin(j * step[..., None])
     half_cos, half_sin = np.cos(j * half[..., None]), np.sin(j * half[..., None])
