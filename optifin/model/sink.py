@@ -15,7 +15,7 @@ several); the "source temperature" adds the interface material (the device case)
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 
 import numpy as np
 
@@ -265,6 +265,25 @@ def _plate_heat_transfer(g, solid, cond, hyd, capacity, k_air, nu, pr) -> dict:
     g_conv = np.minimum(ua, capacity)
     if bulk.size:
         g_conv[bulk] = forced_convection.bulk_referenced_conductance(ua[bulk], capacity[bulk])
+    if method == "auto" and bulk.size:
+        # Above Re_Dh = 2300 the flow in a short channel may still be a developing laminar
+        # boundary layer (Re on the flow length far below a plate's transition), and a
+        # developed-turbulent correlation is low near transition: take the larger of the two
+        # ratings, so that the conductance never drops as the flow rises through 2300.
+        rows = bulk
+        sub_g, sub_solid = _rows(g, rows), _rows(solid, rows)
+        h_lam = forced_convection.nusselt_teertstra_1999(re_star[rows], pr) * k_air / sub_g.gap
+        fin_lam, eta_lam = _finned_conductance(h_lam, sub_g, sub_solid, tip, sub_g.n)
+        ua_lam = h_lam * sub_g.exposed_base_area + fin_lam
+        g_lam = np.minimum(ua_lam, capacity[rows])
+        laminar = g_lam > g_conv[rows]
+        if laminar.any():
+            won = rows[laminar]
+            g_conv[won], h[won], ua[won] = g_lam[laminar], h_lam[laminar], ua_lam[laminar]
+            eta = np.array(eta, dtype=float, copy=True)
+            eta[won] = eta_lam[laminar]
+            inlet_ref = inlet_ref.copy()
+            inlet_ref[won] = True
 
     flags = {}
     if method != "developed_laminar":
@@ -273,8 +292,9 @@ def _plate_heat_transfer(g, solid, cond, hyd, capacity, k_air, nu, pr) -> dict:
             flags["nusselt_teertstra_1999"] = inlet_ref & _out(
                 "nusselt_teertstra_1999", re_b_star=re_star
             )
-            if method == "teertstra_1999":
-                flags["nusselt_teertstra_1999"] |= re_dh > RE_TRANSITION
+            # laminar developing flow rated above Re_Dh 2300 (mode teertstra_1999, or where
+            # it exceeds the turbulent rating in auto): outside the published range
+            flags["nusselt_teertstra_1999"] |= inlet_ref & (re_dh >= RE_TRANSITION)
         if np.any(~inlet_ref):
             used.append("nusselt_gnielinski_1976")
             flags["nusselt_gnielinski_1976"] = ~inlet_ref & _out(
@@ -293,6 +313,17 @@ def _plate_heat_transfer(g, solid, cond, hyd, capacity, k_air, nu, pr) -> dict:
 
 
 # -- pin-fin arrays in cross flow ----------------------------------------------------------------
+def _rows(obj, rows):
+    """The rows ``rows`` of a Geometry or _Solid (arrays indexed; scalars and flags kept)."""
+    n = obj.k.shape[0] if isinstance(obj, _Solid) else obj.n.shape[0]
+    changes = {}
+    for f in fields(obj):
+        value = getattr(obj, f.name)
+        if isinstance(value, np.ndarray) and value.ndim and value.shape[0] == n:
+            changes[f.name] = value[rows]
+    return replace(obj, **changes)
+
+
 def _pin_hydraulics(g: Geometry, pins: dict, rho, nu, flow) -> dict:
     """V_max, Re_D and the array pressure drop of a pin-fin array at a flow."""
     v_front = flow / (g.width * g.height)

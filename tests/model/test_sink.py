@@ -320,3 +320,26 @@ def test_natural_array_against_the_reference_table():
     counts = np.array([12, 14, 16])
     q = evaluate(*_natural_array(counts))["heat_rate_W"].to_numpy()
     np.testing.assert_allclose(q, [26.077, 25.265, 21.253], rtol=0.04)
+
+
+def test_invariant_conductance_rises_through_transition():
+    """Invariant: a rising flow never lowers the sink's conductance, also through Re_Dh 2300
+    where the auto mode moves from the developing-laminar rating (Teertstra et al. 1999) to
+    the larger of it and the developed-turbulent one (Gnielinski 1976, epsilon-NTU); and
+    auto is never below the Teertstra-only rating."""
+    sink = {**SINK, "fin_count": 12, "width": 0.06, "length": 0.06, "process": "skived"}
+    speeds = np.linspace(2.0, 8.0, 25)
+    auto, lam = [], []
+    for v in speeds:
+        auto.append(evaluate(sink, _condition(approach_velocity=v)).iloc[0])
+        lam.append(
+            evaluate(
+                sink, _condition(approach_velocity=v, channel_heat_transfer="teertstra_1999")
+            ).iloc[0]
+        )
+    reynolds = np.array([r["channel_reynolds"] for r in auto])
+    assert reynolds.min() < 2300 < reynolds.max()
+    r_conv = np.array([r["convection_resistance_K_per_W"] for r in auto])
+    assert np.all(np.diff(r_conv) < 0)
+    r_lam = np.array([r["convection_resistance_K_per_W"] for r in lam])
+    assert np.all(r_conv <= r_lam * (1 + 1e-12))
