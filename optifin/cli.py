@@ -48,6 +48,11 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("optifin: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:  # output piped into a reader that stopped early (head, less)
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
 
 
 def _parser() -> argparse.ArgumentParser:
