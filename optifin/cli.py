@@ -58,7 +58,8 @@ def main(argv: list[str] | None = None) -> int:
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="optifin",
-        description="Multi-objective design optimisation of air-cooled plate-fin heat sinks.",
+        description="Multi-objective design optimisation of air-cooled heat sinks "
+        "(plate and pin fins).",
     )
     parser.add_argument("--version", action="version", version=f"optifin {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
