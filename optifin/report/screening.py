@@ -25,10 +25,7 @@ same name is kept until then). The folder holds
 
 from __future__ import annotations
 
-import json
 import math
-import shutil
-import tempfile
 from pathlib import Path
 
 import numpy as np
@@ -37,8 +34,6 @@ from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 
-from optifin.errors import ModelError
-from optifin.physics import registry
 from optifin.problem import problem_hash
 from optifin.report.document import (
     SAFETY,
@@ -50,7 +45,7 @@ from optifin.report.document import (
 )
 from optifin.report.drawing import format_mm
 from optifin.report.plots import DPI, column_label
-from optifin.report.writer import _json_default, _move_into_place, versions
+from optifin.report.writer import atomic_folder, correlation_record, versions, write_json
 
 __all__ = ["FIGURE", "plot_screening", "screening_blocks", "screening_record", "write_screening"]
 
@@ -405,19 +400,7 @@ def screening_blocks(screen, problem, folder, search=None, saving=None) -> list:
 # -- run.json ----------------------------------------------------------------------------------
 def screening_record(screen, problem, search=None, saving=None) -> dict:
     """The content of a screening's run.json."""
-    used = sorted(set(screen.table.attrs.get("correlations", [])))
-    correlations = {}
-    for name in used:
-        try:
-            entry = registry.get(name)
-        except ModelError:  # a name the model reports but the registry does not know
-            correlations[name] = {"reference": "not in the correlation registry"}
-            continue
-        correlations[name] = {
-            "quantity": entry.quantity,
-            "reference": entry.citation(),
-            "validity": {k: list(v) for k, v in entry.validity.items()},
-        }
+    correlations = correlation_record(screen.table.attrs.get("correlations", []))
     table = screen.table
     record = {
         "kind": "catalog_screening",
@@ -472,9 +455,7 @@ def write_screening(screen_result, problem, out, search_result=None) -> Path:
     from optifin.catalog import custom_die_saving
 
     folder = Path(out)
-    folder.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{folder.name}.", suffix=".tmp", dir=folder.parent))
-    try:
+    with atomic_folder(folder) as tmp:
         screen_result.table.to_csv(tmp / "table.csv", index=False)
         screen_result.shortest.to_csv(tmp / "shortest.csv", index=False)
         screen_result.front.to_csv(tmp / "front.csv", index=False)
@@ -487,10 +468,7 @@ def write_screening(screen_result, problem, out, search_result=None) -> Path:
         blocks = screening_blocks(screen_result, problem, tmp, search_result, saving)
         (tmp / "screening.md").write_text(to_markdown(blocks), encoding="utf-8")
         (tmp / "screening.html").write_text(to_html(blocks, title=blocks[0][2]), encoding="utf-8")
-        record = screening_record(screen_result, problem, search_result, saving)
-        (tmp / "run.json").write_text(json.dumps(record, indent=2, default=_json_default))
-        _move_into_place(tmp, folder)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
+        write_json(
+            tmp / "run.json", screening_record(screen_result, problem, search_result, saving)
+        )
     return folder

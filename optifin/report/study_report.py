@@ -16,11 +16,6 @@ record). Figures are drawn on the Agg canvas directly, as in :mod:`optifin.repor
 
 from __future__ import annotations
 
-import dataclasses
-import json
-import os
-import shutil
-import tempfile
 from pathlib import Path
 
 import numpy as np
@@ -29,12 +24,10 @@ from matplotlib import colormaps
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
-from optifin.errors import OptifinError
-from optifin.physics import registry
 from optifin.problem import problem_hash
 from optifin.report.document import SAFETY, format_number, to_html, to_markdown
 from optifin.report.plots import DPI, column_label
-from optifin.report.writer import run_record, versions
+from optifin.report.writer import atomic_folder, run_record, versions, write_json
 
 __all__ = ["CAUTIONS", "FILES", "plot_overlay", "plot_price_sweep", "study_blocks", "write_study"]
 
@@ -499,7 +492,7 @@ def study_record(result) -> dict:
     options = []
     for option in result.options:
         run = result.results[option.name]
-        record = _run_record(run)
+        record = run_record(run)
         record["option"] = {
             "name": option.name,
             "material": option.material,
@@ -534,33 +527,12 @@ def study_record(result) -> dict:
     }
 
 
-def _run_record(run) -> dict:
-    """The run record of one option's search; correlation names the registry does not know
-    are listed apart instead of failing the whole write."""
-    used = list(dict.fromkeys(run.front.attrs.get("correlations", [])))
-    unknown = []
-    for name in used:
-        try:
-            registry.get(name)
-        except OptifinError:
-            unknown.append(name)
-    if not unknown:
-        return run_record(run)
-    front = run.front.copy()
-    front.attrs["correlations"] = [n for n in used if n not in unknown]
-    record = run_record(dataclasses.replace(run, front=front))
-    record["unregistered_correlations"] = unknown
-    return record
-
-
 def write_study(result, out) -> Path:
     """Write the study's folder atomically; returns its path (see the module for files)."""
     folder = Path(out)
     if folder.exists() and not folder.is_dir():
         raise FileExistsError(f"{folder} exists and is not a folder")
-    folder.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{folder.name}.", suffix=".tmp", dir=folder.parent))
-    try:
+    with atomic_folder(folder) as tmp:
         plot_overlay(result, tmp / "overlay.png")
         plot_price_sweep(result, tmp / "price_sweep.png")
         result.fronts.to_csv(tmp / "fronts.csv", index=False)
@@ -570,36 +542,5 @@ def write_study(result, out) -> Path:
         blocks = study_blocks(result)
         (tmp / "study.md").write_text(to_markdown(blocks), encoding="utf-8")
         (tmp / "study.html").write_text(to_html(blocks, title=blocks[0][2]), encoding="utf-8")
-        record = study_record(result)
-        (tmp / "run.json").write_text(json.dumps(record, indent=2, default=_json_default))
-        _move_into_place(tmp, folder)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
+        write_json(tmp / "run.json", study_record(result))
     return folder
-
-
-def _move_into_place(tmp: Path, folder: Path) -> None:
-    """Rename ``tmp`` to ``folder``; an old ``folder`` is kept aside until then."""
-    old = None
-    if folder.exists():
-        old = folder.with_name(folder.name + ".previous")
-        if old.exists():
-            shutil.rmtree(old)
-        os.replace(folder, old)
-    try:
-        os.replace(tmp, folder)
-    except BaseException:
-        if old is not None:  # put the old folder back
-            os.replace(old, folder)
-        raise
-    if old is not None:
-        shutil.rmtree(old, ignore_errors=True)
-
-
-def _json_default(value):
-    if isinstance(value, np.generic):
-        return value.item()
-    if isinstance(value, np.ndarray):
-        return value.tolist()
-    return str(value)

@@ -8,12 +8,13 @@ in place, then removed.
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import platform
 import shutil
 import tempfile
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from importlib import metadata
 from pathlib import Path
 
@@ -37,15 +38,7 @@ def versions() -> dict[str, str]:
 def run_record(result, extra_timings: dict | None = None) -> dict:
     """The content of run.json."""
     problem = result.problem
-    used = sorted(set(result.front.attrs.get("correlations", [])))
-    correlations = {}
-    for name in used:
-        entry = registry.get(name)
-        correlations[name] = {
-            "quantity": entry.quantity,
-            "reference": entry.citation(),
-            "validity": {k: list(v) for k, v in entry.validity.items()},
-        }
+    correlations = correlation_record(result.front.attrs.get("correlations", []))
     return {
         "problem": problem.name,
         "problem_file": str(problem.source),
@@ -62,6 +55,44 @@ def run_record(result, extra_timings: dict | None = None) -> dict:
         "correlations": correlations,
         "objectives": [[c, s] for c, s in result.objective_columns],
     }
+
+
+def correlation_record(names) -> dict:
+    """Quantity, reference and validity ranges of each correlation used, for run.json."""
+    correlations = {}
+    for name in sorted(set(names)):
+        entry = registry.get(name)
+        correlations[name] = {
+            "quantity": entry.quantity,
+            "reference": entry.citation(),
+            "validity": {k: list(v) for k, v in entry.validity.items()},
+        }
+    return correlations
+
+
+def write_json(path: Path, record: dict) -> Path:
+    """A run record as indented JSON (numpy scalars and arrays as plain values)."""
+    path = Path(path)
+    path.write_text(json.dumps(record, indent=2, default=_json_default))
+    return path
+
+
+@contextlib.contextmanager
+def atomic_folder(folder) -> Iterator[Path]:
+    """A temporary sibling folder to write into, moved over ``folder`` on success.
+
+    On any failure the temporary folder is removed and an existing ``folder`` is left as
+    it was; a previous ``folder`` is replaced only once the new one is complete.
+    """
+    folder = Path(folder)
+    folder.parent.mkdir(parents=True, exist_ok=True)
+    tmp = Path(tempfile.mkdtemp(prefix=f".{folder.name}.", suffix=".tmp", dir=folder.parent))
+    try:
+        yield tmp
+        _move_into_place(tmp, folder)
+    except BaseException:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise
 
 
 def write_table(frame: pd.DataFrame, path_stem: Path) -> Path:
@@ -88,31 +119,30 @@ def write_results(
     temporary folder before it is moved into place.
     """
     folder = Path(folder)
-    folder.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{folder.name}.", suffix=".tmp", dir=folder.parent))
-    try:
+    with atomic_folder(folder) as tmp:
         result.front.to_csv(tmp / "front.csv", index=False)  # shortest round-trip floats
         write_table(result.archive, tmp / "designs")
         result.history.to_csv(tmp / "history.csv", index=False)
         if extras is not None:
             extras(result, tmp)
-        record = run_record(result)
-        (tmp / "run.json").write_text(json.dumps(record, indent=2, default=_json_default))
-        _move_into_place(tmp, folder)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
+        write_json(tmp / "run.json", run_record(result))
     return folder
 
 
 def _move_into_place(tmp: Path, folder: Path) -> None:
+    """Rename ``tmp`` to ``folder``; an old ``folder`` is kept aside until then."""
     old = None
     if folder.exists():
         old = folder.with_name(folder.name + ".previous")
         if old.exists():
             shutil.rmtree(old)
         os.replace(folder, old)
-    os.replace(tmp, folder)
+    try:
+        os.replace(tmp, folder)
+    except BaseException:
+        if old is not None:  # put the old folder back
+            os.replace(old, folder)
+        raise
     if old is not None:
         shutil.rmtree(old, ignore_errors=True)
 
