@@ -15,28 +15,7 @@ import pytest
 from optifin.errors import ConfigError, OptifinError
 from optifin.problem import load_problem, load_problem_text, problem_from_mapping
 
-DELETE = object()
-
-
-def put(doc: dict, path: str, value) -> dict:
-    """Set (or with DELETE remove) the value at a dotted path; digits index lists."""
-    keys = path.split(".")
-    node = doc
-    for key in keys[:-1]:
-        node = node[int(key)] if isinstance(node, list) else node.setdefault(key, {})
-    last = int(keys[-1]) if isinstance(node, list) else keys[-1]
-    if value is DELETE:
-        del node[last]
-    else:
-        node[last] = value
-    return doc
-
-
-def problems(doc, source="bad.yaml") -> list[str]:
-    with pytest.raises(ConfigError) as info:
-        problem_from_mapping(doc, source)
-    assert info.value.source == source
-    return info.value.problems
+from ._edit import DELETE, problems, put
 
 
 def only(doc) -> str:
