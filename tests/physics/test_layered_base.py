@@ -27,33 +27,11 @@ from optifin.physics.spreading import (
     flux_channel_influence_muzychka_2003 as influence,
 )
 
+from ._fv import pcg
+
 # --------------------------------------------------------------------------------------
 # independent reference: 3-D finite volumes on a quarter of the plate (both mid-planes are
 # planes of symmetry, i.e. adiabatic), cell-wise k, isoflux source on top, film below
-
-
-def _pcg(matrix, rhs, rtol=1e-11):
-    """Jacobi-preconditioned conjugate gradients without BLAS calls."""
-    dinv = 1.0 / matrix.diagonal()
-    x = np.zeros_like(rhs)
-    r = rhs.copy()
-    z = dinv * r
-    p = z.copy()
-    rz = (r * z).sum()
-    stop = rtol * np.sqrt((rhs * rhs).sum())
-    for _ in range(50000):
-        q = matrix @ p
-        alpha = rz / (p * q).sum()
-        x += alpha * p
-        r -= alpha * q
-        if np.sqrt((r * r).sum()) < stop:
-            return x
-        z = dinv * r
-        rz_new = (r * z).sum()
-        p *= rz_new / rz
-        p += z
-        rz = rz_new
-    raise AssertionError("finite-volume CG did not converge")
 
 
 def _finite_volume(case, dx, frame_k=None):
@@ -108,7 +86,7 @@ def _finite_volume(case, dx, frame_k=None):
     flux = on / (c * d)  # 1 W on the whole plate, a quarter of it here
     rhs = np.zeros(shape)
     rhs[:, :, 0] = flux * dx * dx
-    temp = _pcg(matrix, rhs.ravel()).reshape(shape)
+    temp = pcg(matrix, rhs.ravel()).reshape(shape)
     top = temp[:, :, 0] + flux * dz[0] / (2 * k[:, :, 0])
     cell_energy = np.zeros(shape)
     for one, two, g in faces:

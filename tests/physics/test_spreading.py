@@ -24,6 +24,8 @@ from optifin.physics.spreading import (
 )
 from optifin.physics.spreading import spreading_song_lee_au_1994 as lee
 
+from ._fv import pcg
+
 # physics.md table, check values 27 and 28: (a, b, t, k, h, c, d, X, Y) in SI
 CASE_27 = (0.05, 0.05, 0.005, 200.0, 1000.0, 0.02, 0.02, 0.025, 0.025)
 CASE_28 = (0.05, 0.05, 0.004, 200.0, 2000.0, 0.01, 0.01, 0.015, 0.02)
@@ -52,30 +54,6 @@ def _disk_series(a, b, t, k, h, n=20000):
 # sources on the top face, convection (half-cell conduction in series with 1/h) below
 
 
-def _pcg(matrix, rhs, rtol=1e-11):
-    """Jacobi-preconditioned conjugate gradients without BLAS calls (no thread contention)."""
-    dinv = 1.0 / matrix.diagonal()
-    x = np.zeros_like(rhs)
-    r = rhs.copy()
-    z = dinv * r
-    p = z.copy()
-    rz = (r * z).sum()
-    stop = rtol * np.sqrt((rhs * rhs).sum())
-    for _ in range(50000):
-        q = matrix @ p
-        alpha = rz / (p * q).sum()
-        x += alpha * p
-        r -= alpha * q
-        if np.sqrt((r * r).sum()) < stop:
-            return x
-        z = dinv * r
-        rz_new = (r * z).sum()
-        p *= rz_new / rz
-        p += z
-        rz = rz_new
-    raise AssertionError("finite-volume CG did not converge")
-
-
 def _finite_volume_top(a, b, t, k, h, n_xy, n_z, sources, powers):
     """Top-face temperature rise (n_x, n_y) and cell centres for sources (c, d, X, Y)."""
     nx, ny = n_xy, round(n_xy * b / a)
@@ -102,7 +80,7 @@ def _finite_volume_top(a, b, t, k, h, n_xy, n_z, sources, powers):
         flux += on * power / (c * d)
     rhs = np.zeros((nx, ny, n_z))
     rhs[:, :, 0] = flux / dz
-    temp = _pcg(matrix.tocsr(), rhs.ravel()).reshape(nx, ny, n_z)
+    temp = pcg(matrix.tocsr(), rhs.ravel()).reshape(nx, ny, n_z)
     return temp[:, :, 0] + flux * dz / (2 * k), xc, yc
 
 
