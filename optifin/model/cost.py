@@ -28,10 +28,7 @@ def mass_and_cost(
     lib = library.array
     density, price = lib("density"), lib("price")
     rho_fin = np.take(density, m)
-    fin_length = (
-        g.length if not designs.has_pins else np.where(designs.fin_type == 1, 1.0, g.length)
-    )
-    fin_volume = g.n * g.fin_section * fin_length
+    fin_volume = g.n * g.fin_volume
     base_volume = g.base_area * g.base
     part_volume = base_volume + fin_volume
     envelope = g.base_area * (g.base + g.height)

@@ -69,7 +69,9 @@ class Geometry:
     sigma: np.ndarray  #: free-flow / frontal area ratio (N-1) b / W
     reasons: np.ndarray  #: bitmask of :data:`REASONS` (int32)
     t_tip: np.ndarray  #: fin tip thickness [m] (= t untapered)
-    fin_section: np.ndarray  #: cross-section of one fin [m²] (plates: (t + t_tip) H / 2)
+    fin_volume: np.ndarray  #: metal of one fin [m³]: (t + t_tip) H L / 2, pins π D² H / 4
+    #: :func:`pin_geometry` of the pin rows (in the order of ``fin_type == 1``), or None
+    pins: dict | None = None
 
 
 def derive(designs: Designs, library: Library, source_sizes=None) -> Geometry:
@@ -130,12 +132,11 @@ def derive(designs: Designs, library: Library, source_sizes=None) -> Geometry:
         n[bad], t[bad], h[bad], tb[bad], w[bad], length[bad] = 2.0, 1e-3, 1e-2, 1e-3, 0.1, 0.1
         t_tip[bad] = 1e-3
         gap[bad] = (0.1 - 2.0 * 1e-3) / (2.0 - 1.0)
-    fin_section = 0.5 * (t + t_tip) * h if tapered else t * h
+    fin_volume = (0.5 * (t + t_tip) if tapered else t) * h * length
     exposed = (n - 1) * gap * length
     sigma = (n - 1) * gap / w
     if pins is not None:
-        fin_section = np.array(fin_section)  # a fresh array: pins get their own section
-        fin_section[pins] = np.pi / 4 * t[pins] ** 2 * h[pins]
+        fin_volume[pins] = np.pi / 4 * t[pins] ** 2 * h[pins]
         exposed[pins] = (w * length - n * np.pi / 4 * t**2)[pins]
         sigma[pins] = np.where(np.isin(pins, bad), sigma[pins], pg["sigma"])
         # a pin design stood in for by a plate stand-in stays a stand-in: nothing else to do
@@ -152,7 +153,8 @@ def derive(designs: Designs, library: Library, source_sizes=None) -> Geometry:
         sigma=sigma,
         reasons=reasons,
         t_tip=t_tip,
-        fin_section=fin_section,
+        fin_volume=fin_volume,
+        pins=None if pins is None else pg,
     )
 
 
@@ -226,13 +228,12 @@ def manufacturing_margins(designs: Designs, library: Library, gap=None) -> dict[
     search can grade how far a design is from being makeable.
     """
     pins = np.flatnonzero(designs.fin_type == 1) if designs.has_pins else None
-    pg = pin_geometry(designs.take(pins)) if pins is not None else None
     if gap is None:
         n = designs.fin_count.astype(float)
         with np.errstate(divide="ignore", invalid="ignore"):
             gap = (designs.width - n * designs.fin_thickness) / (n - 1)
         if pins is not None:
-            gap[pins] = pg["clear_gap"]
+            gap[pins] = pin_geometry(designs.take(pins))["clear_gap"]
     with np.errstate(divide="ignore", invalid="ignore"):
         aspect = np.where(gap > 0, designs.fin_height / gap, np.inf)
     thinnest = designs.fin_thickness
@@ -240,7 +241,7 @@ def manufacturing_margins(designs: Designs, library: Library, gap=None) -> dict[
         thinnest = np.fmin(thinnest, designs.fin_tip_thickness)
     if pins is not None:
         thinnest = np.array(thinnest)
-        thinnest[pins] = pg["diameter"]
+        thinnest[pins] = designs.pin_diameter[pins]
     values = {
         "min_fin_thickness": thinnest,
         "min_gap": gap,

@@ -30,7 +30,6 @@ from optifin.model.geometry import (
     Geometry,
     derive,
     pair_lookup,
-    pin_geometry,
 )
 from optifin.numerics import bracketed_root
 from optifin.physics import (
@@ -507,7 +506,7 @@ def _evaluate_block(designs: Designs, condition: Condition, library: Library) ->
     r_base = g.base / (solid.k_base * g.base_area)
     used: list[str] = ["fin_1d_uniform"]
     flags = {"fin_1d_uniform": np.zeros(len(designs), bool)}
-    pins = _pin_arrays(designs) if designs.has_pins else None  # a block is all plates or pins
+    pins = _pin_arrays(designs, g) if designs.has_pins else None  # a block: plates or pins
     if solid.tapered:
         used.append("fin_1d_trapezoidal")
 
@@ -809,9 +808,9 @@ def _insert_spreading(out, rows, designs, g, solid, cond, g_total, library) -> N
     out["r_case"][rows] = r_mean + s.interface_resistance
 
 
-def _pin_arrays(designs: Designs) -> dict:
+def _pin_arrays(designs: Designs, g: Geometry) -> dict:
     """Pin diameter, pitches, layout and rows of a block of pin-fin designs."""
-    pg = pin_geometry(designs)
+    pg = g.pins  # derive's pin_geometry: the block is all pins
     d, s_t, s_l = pg["stand_in"]  # the pins where defined, safe stand-ins elsewhere
     return {
         "diameter": d,
