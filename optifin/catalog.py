@@ -1143,43 +1143,19 @@ def _catalog_costs(problem: Problem, s, index: pd.DataFrame):
     return F, G, feasible, price, total
 
 
-#: Constraints whose violation the model's reason bits already name.
-_MODEL_REASONS = (
-    "min_fin_thickness",
-    "min_gap",
-    "max_aspect_ratio",
-    "min_base_thickness",
-    "max_fin_height",
-    "max_width",
-    "exists",
-)
-
-
 def _rows(problem: Problem, designs, s, G: np.ndarray, feasible: np.ndarray) -> pd.DataFrame:
     """The rows of :func:`optifin.search.design_table` from one score, in design order.
 
     ``design_table`` scores the designs again and sorts them; here one evaluation serves
     the catalog's objectives, its costs and the table, and the order stays that of the
-    index frame (a test checks the two tables agree).
+    index frame (a test checks the two tables agree). ``G`` and ``feasible`` are the
+    catalog-priced constraints (:func:`catalog_scores`).
     """
-    from optifin.model import to_frame
-    from optifin.search.objectives import constraint_names
+    from dataclasses import replace
 
-    sources = [source.name for source in problem.condition.sources]
-    table = to_frame(designs, s.arrays, problem.library, sources)
-    names = constraint_names(problem)
-    for name, column in zip(names, G.T, strict=True):
-        table[f"margin_{name}"] = 0.0 - column
-    reasons = table["infeasible_reason"].to_numpy(dtype=object)
-    for name, column in zip(names, G.T, strict=True):
-        if name in _MODEL_REASONS:
-            continue
-        text = f"{name.replace('_', ' ')} not met"
-        joined = np.where(reasons == "", text, reasons + "; " + text)
-        reasons = np.where(column > 0, joined, reasons)
-    table["feasible"] = feasible
-    table["infeasible_reason"] = reasons
-    return table
+    from optifin.search import design_rows
+
+    return design_rows(problem, designs, replace(s, G=G, feasible=feasible))
 
 
 def _insert_after(table: pd.DataFrame, after: str, name: str, values) -> None:

@@ -264,15 +264,29 @@ def design_table(problem: Problem, designs, part=None, parts=None) -> pd.DataFra
     if parts is not None:
         part = parts.match(designs) if part is None else np.asarray(part, dtype=np.int64)
     s = _score(problem, designs, parts, part)  # one model evaluation: table and margins
-    names = [source.name for source in problem.condition.sources]
-    table = to_frame(designs, s.arrays, problem.library, names)
+    table = design_rows(problem, designs, s)
     if parts is not None:
         table.insert(0, "catalog_part", parts.part_ids(part))
-    for name, column in zip(constraint_names(problem), s.G.T, strict=True):
+    first = problem.objectives[0]
+    column = objective_column(first.name)
+    table = table.sort_values(column, ascending=first.sense == "minimise", kind="stable")
+    return table.reset_index(drop=True)
+
+
+def design_rows(problem: Problem, designs, s: Scores) -> pd.DataFrame:
+    """The rows of :func:`design_table` from one score ``s``, in design order (unsorted).
+
+    The model table, ``margin_<constraint>`` per constraint, feasibility, and the reasons,
+    with each limit or envelope bound that is not met added to the model's own.
+    """
+    names = [source.name for source in problem.condition.sources]
+    table = to_frame(designs, s.arrays, problem.library, names)
+    constraints = constraint_names(problem)
+    for name, column in zip(constraints, s.G.T, strict=True):
         table[f"margin_{name}"] = 0.0 - column  # 0.0 - x: no negative zeros in the table
     violated = [
         np.where(column > 0, f"{name.replace('_', ' ')} not met", "")
-        for name, column in zip(constraint_names(problem), s.G.T, strict=True)
+        for name, column in zip(constraints, s.G.T, strict=True)
         if name in LIMITS or name in LOWER_LIMITS or name.startswith("envelope_")
     ]
     reasons = table["infeasible_reason"].to_numpy(dtype=object)
@@ -282,10 +296,7 @@ def design_table(problem: Problem, designs, part=None, parts=None) -> pd.DataFra
         )
     table["feasible"] = s.feasible
     table["infeasible_reason"] = reasons
-    first = problem.objectives[0]
-    column = objective_column(first.name)
-    table = table.sort_values(column, ascending=first.sense == "minimise", kind="stable")
-    return table.reset_index(drop=True)
+    return table
 
 
 def archive_table(problem: Problem, encoding: Encoding, batches) -> pd.DataFrame:

@@ -7,10 +7,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from optifin.model.design import Designs
-from optifin.model.geometry import BIT, NONEXISTENT, manufacturing_margins
+from optifin.model.geometry import BIT, LIMIT_CHECKS, NONEXISTENT, manufacturing_margins
 from optifin.model.sink import evaluate_arrays
 from optifin.problem.spec import LIMITS, LOWER_LIMITS, Problem
 
+#: The process limits, one constraint each (in the model's order).
+PROCESS_LIMITS = tuple(name for name, _ in LIMIT_CHECKS)
 #: A stand-in objective for designs that cannot exist; only ever compared with its peers.
 BAD = 1e12
 
@@ -30,15 +32,7 @@ def constraint_names(problem: Problem) -> list[str]:
     names = [name for name in LIMITS if name in problem.limits]
     names += [name for name in LOWER_LIMITS if name in problem.limits]
     names += [f"envelope_{name}" for name, _, _ in _envelope_terms(problem)]
-    names += [
-        "min_fin_thickness",
-        "min_gap",
-        "max_aspect_ratio",
-        "min_base_thickness",
-        "max_fin_height",
-        "max_width",
-        "exists",
-    ]
+    names += [*PROCESS_LIMITS, "exists"]
     return names
 
 
@@ -71,14 +65,7 @@ def score(problem: Problem, designs: Designs) -> Scores:
     for _, bound, size in _envelope_terms(problem):
         g.append((size(designs) - bound) / bound)
     margins = manufacturing_margins(designs, problem.library)
-    for name in (
-        "min_fin_thickness",
-        "min_gap",
-        "max_aspect_ratio",
-        "min_base_thickness",
-        "max_fin_height",
-        "max_width",
-    ):
+    for name in PROCESS_LIMITS:
         g.append(-margins[name])
     # the sink must exist, fit its sources and reach a steady operating point
     bad = gone | ((reasons & (BIT["no_solution"] | BIT["fan_stall"])) != 0)
