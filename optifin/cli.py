@@ -6,6 +6,7 @@ Errors of the user are one line on stderr and exit code 2; a traceback only with
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import json
 import math
 import sys
@@ -188,13 +189,7 @@ def _evaluate(args) -> int:
     from optifin.api import evaluate_designs, load_problem
 
     problem = load_problem(args.problem)
-    values = {}
-    for item in args.set:
-        if "=" not in item:
-            raise OptifinError(f"--set {item!r}: expected NAME=VALUE")
-        name, value = item.split("=", 1)
-        values[name.strip()] = value.strip().strip('"').strip("'")
-    row = evaluate_designs(problem, values).iloc[0]
+    row = evaluate_designs(problem, _values(args.set)).iloc[0]
     record = {key: _plain(value) for key, value in row.items()}
     if args.json:
         print(json.dumps(record, indent=2))
@@ -208,25 +203,20 @@ def _evaluate(args) -> int:
 
 def _catalog(args) -> int:
     from optifin.api import load_problem, optimise
-    from optifin.catalog import load_catalog, screen_catalog, screen_problem
+    from optifin.catalog import load_catalog, screen_problem
+    from optifin.problem.spec import CatalogChoice
     from optifin.report.screening import write_screening
 
     problem = load_problem(args.problem)
-    choice = problem.catalog
     catalog = load_catalog(args.catalog, problem.library) if args.catalog else None
     started = time.perf_counter()
-    if args.orientation:
+    if args.orientation:  # the problem's catalog settings, with these orientations
         orientations = ("along", "across") if args.orientation == "both" else (args.orientation,)
-        if catalog is None:
-            catalog = load_catalog(choice.path if choice else None, problem.library)
-        cuts = None
-        if choice is not None and choice.cut_lengths:
-            import numpy as np
-
-            cuts = np.array(choice.cut_lengths)
-        screened = screen_catalog(problem, catalog, cut_lengths=cuts, orientations=orientations)
-    else:
-        screened = screen_problem(problem, catalog)
+        choice = problem.catalog or CatalogChoice(path=None, cut_lengths=())
+        problem = dataclasses.replace(
+            problem, catalog=dataclasses.replace(choice, orientations=orientations)
+        )
+    screened = screen_problem(problem, catalog)
     search_result = None
     if args.search:
         progress = None if args.quiet else _Progress(problem.name)
@@ -250,9 +240,7 @@ def _catalog(args) -> int:
 
 
 def _study(args) -> int:
-    from optifin.api import load_problem
-    from optifin.report.study_report import write_study
-    from optifin.study import run_study
+    from optifin.api import load_problem, study_materials
 
     problem = load_problem(args.problem)
     if not problem.study:
@@ -269,19 +257,19 @@ def _study(args) -> int:
             bars[option] = _Progress(f"{problem.name}: {option}")
         bars[option](done, total)
 
+    out = Path(args.out) if args.out else Path("results") / f"{problem.name}_study"
     try:
-        result = run_study(
+        study_materials(
             problem,
+            out,
             seed=args.seed,
             evaluations=args.evaluations,
             progress=None if args.quiet else progress,
-            target_resistance=problem.study_target,
         )
     finally:
         for bar in bars.values():
             bar.close()
-    out = Path(args.out) if args.out else Path("results") / f"{problem.name}_study"
-    folder = write_study(result, out)
+    folder = out
     print(
         f"{problem.name}: {len(problem.study)} constructions compared, "
         f"{time.perf_counter() - started:.1f} s"
