@@ -457,10 +457,7 @@ def search_parts(problem: Problem, catalog: Catalog | None = None) -> SearchPart
         if choice.cut_lengths
         else default_cut_lengths(problem)
     )
-    env = problem.envelope
-    width_bound = _bound(problem, env.max_width, "width")
-    length_bound = _bound(problem, env.max_length, "length")
-    height_bound = _bound(problem, env.max_height, "base_thickness", "fin_height")
+    width_bound, length_bound, height_bound = _envelope_bounds(problem)
     p = catalog.profiles
     height = (p["base_thickness"] + p["fin_height"]).to_numpy(dtype=float)
     fits = p["width"].to_numpy(dtype=float) <= width_bound * (1 + _TOLERANCE)
@@ -960,6 +957,16 @@ def _rotate_problem(problem: Problem) -> Problem:
     )
 
 
+def _envelope_bounds(problem: Problem) -> tuple[float, float, float]:
+    """Largest width, length and height (base plus fins) a part may have [m]."""
+    env = problem.envelope
+    return (
+        _bound(problem, env.max_width, "width"),
+        _bound(problem, env.max_length, "length"),
+        _bound(problem, env.max_height, "base_thickness", "fin_height"),
+    )
+
+
 def _bound(problem: Problem, envelope_value, *variables: str) -> float:
     """An envelope bound [m], else the sum of the variables' upper ends, else inf."""
     if envelope_value is not None:
@@ -1028,10 +1035,7 @@ def screen_catalog(
     if cuts.size == 0:
         raise SearchError("catalog screening: no cut length to rate (the envelope is too short)")
 
-    env = problem.envelope
-    width_bound = _bound(problem, env.max_width, "width")
-    length_bound = _bound(problem, env.max_length, "length")
-    height_bound = _bound(problem, env.max_height, "base_thickness", "fin_height")
+    width_bound, length_bound, height_bound = _envelope_bounds(problem)
     profiles = catalog.profiles
     height = (profiles["base_thickness"] + profiles["fin_height"]).to_numpy(dtype=float)
     width = profiles["width"].to_numpy(dtype=float)

@@ -60,6 +60,14 @@ __all__ = [
 R = "thermal_resistance_K_per_W"
 MASS = "mass_kg"
 COST = "total_cost"
+#: What a matched pair's premium table gives: the deltas and the gains per kg and per cost.
+PREMIUM_COLUMNS = (
+    "delta_resistance_K_per_W",
+    "delta_mass_kg",
+    "delta_cost",
+    "K_per_W_per_kg",
+    "K_per_W_per_cost",
+)
 #: The geometry a matched pair shares (result-table names).
 GEOMETRY_COLUMNS = (
     "fin_count",
@@ -659,13 +667,7 @@ def _premium_summary(options, premium: pd.DataFrame) -> pd.DataFrame:
             if len(part)
             else 0,
         }
-        for column in (
-            "delta_resistance_K_per_W",
-            "delta_mass_kg",
-            "delta_cost",
-            "K_per_W_per_kg",
-            "K_per_W_per_cost",
-        ):
+        for column in PREMIUM_COLUMNS:
             values = part[column] if len(part) else []
             row[f"median_{column}"] = _median(values)
         row["ratio_pairs_per_kg"] = (
@@ -674,14 +676,7 @@ def _premium_summary(options, premium: pd.DataFrame) -> pd.DataFrame:
         row["ratio_pairs_per_cost"] = (
             int(np.isfinite(part["K_per_W_per_cost"]).sum()) if len(part) else 0
         )
-        for column in (
-            R,
-            "delta_resistance_K_per_W",
-            "delta_mass_kg",
-            "delta_cost",
-            "K_per_W_per_kg",
-            "K_per_W_per_cost",
-        ):
+        for column in (R, *PREMIUM_COLUMNS):
             row[f"knee_{column}"] = float(knee[column].iloc[0]) if len(knee) else float("nan")
         rows.append(row)
     return pd.DataFrame(rows)
